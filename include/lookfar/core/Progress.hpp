@@ -1,0 +1,31 @@
+#pragma once
+// Progress and cancellation as the engines see them: a sink they report to, with no idea of
+// terminals or printing. The CLI supplies a sink that draws on stderr.
+#include <atomic>
+#include <cstdint>
+#include <string>
+
+namespace lookfar {
+
+class Progress {
+  public:
+    virtual ~Progress() = default;
+    /// Starts a stage of `total` units of work (cells, rows, sites …) named `label`.
+    virtual void begin(const std::string& label, std::int64_t total) { (void)label, (void)total; }
+    /// `done` units of the current stage are finished (monotonic, thread-safe callers only).
+    virtual void advance(std::int64_t done) { (void)done; }
+    virtual void end() {}
+    /// True once the user asked to stop; engines then throw Interrupted.
+    virtual bool cancelled() const { return false; }
+};
+
+/// A sink that shows nothing and is never cancelled.
+Progress& silentProgress();
+
+/// Set from the SIGINT handler; read by every Progress sink's cancelled().
+std::atomic<bool>& interruptFlag();
+
+/// Throws Interrupted if the sink reports cancellation.
+void throwIfCancelled(const Progress& progress);
+
+}  // namespace lookfar

@@ -1,0 +1,31 @@
+#pragma once
+// Length units and the parsing of lengths written by users ("100", "100m", "30ft", "12us-ft").
+#include <optional>
+#include <string>
+
+namespace lookfar {
+
+inline constexpr double kMetresPerFoot = 0.3048;                   // international foot, exact
+inline constexpr double kMetresPerUsSurveyFoot = 1200.0 / 3937.0;  // US survey foot, exact
+inline constexpr double kPi = 3.14159265358979323846;
+inline constexpr double kDegToRad = kPi / 180.0;
+inline constexpr double kRadToDeg = 180.0 / kPi;
+
+/// A linear unit: its name as lookfar prints it and its length in metres.
+struct LinearUnit {
+    std::string name;  ///< "metre", "foot", "US survey foot", …
+    double metres = 1.0;
+};
+
+/// Recognises unit names and abbreviations ("m", "metre", "meter", "ft", "foot", "feet",
+/// "international foot", "us-ft", "US survey foot", "ftUS"); nullopt for anything else.
+std::optional<LinearUnit> parseLinearUnit(const std::string& text);
+
+/// Parses a length with an optional unit suffix (m, ft, us-ft) into metres.
+/// Throws UsageError naming `what` (e.g. "--observer-height") when malformed or non-finite.
+double parseLengthMetres(const std::string& text, const std::string& what);
+
+/// Trims ASCII white space at both ends.
+std::string trim(const std::string& text);
+
+}  // namespace lookfar

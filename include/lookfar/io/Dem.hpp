@@ -1,0 +1,52 @@
+#pragma once
+// Reading DEMs through GDAL: any format GDAL reads (GeoTIFF, VRT mosaics, …).
+// Elevations are converted to metres; no-data cells become NaN in the grid.
+#include <optional>
+#include <string>
+
+#include "lookfar/core/Grid.hpp"
+#include "lookfar/core/GridGeometry.hpp"
+#include "lookfar/core/Units.hpp"
+
+namespace lookfar {
+
+/// What is known of a DEM's CRS.
+struct CrsInfo {
+    std::string wkt;                           ///< WKT2 of the CRS
+    std::string name;                          ///< e.g. "WGS 84 / UTM zone 30N"
+    std::string epsg;                          ///< "EPSG:32630", or empty when there is no code
+    bool geographic = false;                   ///< lat/lon in degrees
+    LinearUnit horizontal_unit{"metre", 1.0};  ///< for projected CRSs
+    Ellipsoid ellipsoid;                       ///< of the CRS's datum
+};
+
+struct DemReadOptions {
+    int band = 1;                      ///< 1-based band number
+    std::optional<LinearUnit> z_unit;  ///< overrides the band's unit type
+    /// Window to read, in cells of the full raster: col, row, width, height (all 0 = all).
+    int win_col = 0, win_row = 0, win_width = 0, win_height = 0;
+};
+
+struct Dem {
+    std::string path;
+    Grid<float> z;          ///< elevations in metres; NaN = no data
+    GridGeometry geometry;  ///< of the window that was read
+    CrsInfo crs;
+    LinearUnit z_unit;                    ///< unit of the stored values
+    bool z_unit_from_band = false;        ///< false when assumed (metres) or set by --z-unit
+    std::optional<double> nodata;         ///< the band's no-data value, in stored units
+    int full_width = 0, full_height = 0;  ///< size of the whole raster
+    std::string driver;                   ///< GDAL driver short name
+};
+
+/// Opens `path` and reports size, CRS and geometry without reading cells.
+/// Throws InputError (missing, unreadable, not a raster, rotated, no CRS, bad band).
+Dem probeDem(const std::string& path, const DemReadOptions& options = {});
+/// Reads the DEM (or the window of it given in options).
+Dem readDem(const std::string& path, const DemReadOptions& options = {});
+
+/// Metres per stored unit and the unit's name from a GDAL unit type string ("m", "ft" …);
+/// nullopt for an empty or unknown string.
+std::optional<LinearUnit> unitFromUnitType(const std::string& unit_type);
+
+}  // namespace lookfar

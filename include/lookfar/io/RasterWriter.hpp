@@ -1,0 +1,64 @@
+#pragma once
+// Writing rasters through GDAL, safely: the raster goes to a temporary file in the output's
+// folder and is renamed into place by commit(); a writer destroyed without commit() (an error,
+// Ctrl-C) removes its temporary file, so no partial file is ever left at the output path.
+#include <map>
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "lookfar/core/GridGeometry.hpp"
+
+namespace lookfar {
+
+enum class PixelType { Byte, UInt16, Float32 };
+
+struct RasterSpec {
+    std::string path;
+    int width = 0;
+    int height = 0;
+    int bands = 1;
+    PixelType type = PixelType::Float32;
+    double nodata = -9999.0;
+    std::array<double, 6> geotransform{0, 1, 0, 0, 0, -1};
+    std::string crs_wkt;
+    std::vector<std::string> band_descriptions;   ///< one per band (may be empty)
+    std::map<std::string, std::string> metadata;  ///< dataset metadata, e.g. LOOKFAR_*
+    std::vector<std::string> creation_options;    ///< KEY=VALUE; defaults when empty
+    std::string unit_type;                        ///< band unit type ("m", "deg"), optional
+};
+
+/// lookfar's default GeoTIFF creation options for a pixel type: tiled, DEFLATE, predictor.
+std::vector<std::string> defaultCreationOptions(PixelType type);
+
+/// Checks an output path before any work: its folder exists and is writable, it is not the
+/// same file as any of `inputs` (compared as files), and it does not exist unless `overwrite`.
+/// Throws OutputError naming the path.
+void checkOutputPath(const std::string& path, const std::vector<std::string>& inputs,
+                     bool overwrite);
+
+class RasterWriter {
+  public:
+    explicit RasterWriter(RasterSpec spec);
+    ~RasterWriter();
+    RasterWriter(const RasterWriter&) = delete;
+    RasterWriter& operator=(const RasterWriter&) = delete;
+
+    const RasterSpec& spec() const { return spec_; }
+    /// Writes `rows` full rows of band `band` (1-based) starting at `row0`; `data` holds
+    /// rows × width values of the spec's pixel type (uint8_t, uint16_t or float).
+    void writeRows(int band, int row0, int rows, const void* data);
+    /// Writes a whole band.
+    void writeBand(int band, const void* data) { writeRows(band, 0, spec_.height, data); }
+    /// Closes the file and renames it into place. Throws OutputError, or Interrupted when
+    /// the run was interrupted (then nothing is renamed).
+    void commit();
+
+  private:
+    RasterSpec spec_;
+    std::string temp_path_;
+    void* dataset_ = nullptr;  // GDALDatasetH
+    bool committed_ = false;
+};
+
+}  // namespace lookfar

@@ -1,0 +1,27 @@
+#pragma once
+// One function per subcommand (one file each); main() registers them all.
+#include <CLI/CLI.hpp>
+
+#include <string>
+#include <vector>
+
+#include "Common.hpp"
+
+namespace lookfar::cli {
+
+Command addInfoCommand(CLI::App& root);
+Command addViewshedCommand(CLI::App& root);
+Command addHorizonCommand(CLI::App& root);
+Command addLinkCommand(CLI::App& root);
+Command addIntervisCommand(CLI::App& root);
+Command addSelectCommand(CLI::App& root);
+
+/// Every subcommand, in the order --help lists them.
+std::vector<Command> allCommands(CLI::App& root);
+
+/// The geometry conventions, printed in --help (DESIGN.md: state them in --help).
+std::string conventionsText();
+/// The cautions of DESIGN.md, printed at the foot of --help.
+std::string cautionText();
+
+}  // namespace lookfar::cli

@@ -1,0 +1,350 @@
+#include "Common.hpp"
+
+#include <unistd.h>
+
+#include <cmath>
+#include <cstdio>
+#include <fstream>
+#include <iostream>
+
+#ifdef _OPENMP
+#include <omp.h>
+#endif
+
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Units.hpp"
+
+namespace lookfar::cli {
+
+std::string& commandLine() {
+    static std::string line;
+    return line;
+}
+
+void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
+    app->add_option("DEM", o.dem, "digital elevation model (any raster GDAL reads)")->required();
+    app->add_option("--crs", o.crs,
+                    "CRS of coordinates on the command line and in CSVs (default: the DEM's), "
+                    "x/easting/longitude first, e.g. EPSG:4326")
+        ->group("Coordinates");
+    if (which & kHeightOptions) {
+        app->add_option("--observer-height", o.observer_height,
+                        "eye above the ground, metres (suffix m, ft or us-ft allowed)")
+            ->capture_default_str()
+            ->group("Geometry");
+        app->add_option("--target-height", o.target_height,
+                        "target point above the ground of each cell, metres")
+            ->capture_default_str()
+            ->group("Geometry");
+    }
+    if (which & kGeometryOptions) {
+        app->add_option("--reach", o.reach,
+                        "farthest distance considered, metres (default unlimited)")
+            ->group("Geometry");
+        app->add_option("--refraction", o.refraction,
+                        "refraction coefficient k; 0.13 light over land, 0.25 radio (4/3 Earth); "
+                        "k < 1")
+            ->capture_default_str()
+            ->group("Geometry");
+        app->add_option("--earth-model", o.earth_model,
+                        "ellipsoid (radius along each sightline, from the CRS), sphere, or flat")
+            ->capture_default_str()
+            ->check(CLI::IsMember({"ellipsoid", "sphere", "flat"}))
+            ->group("Geometry");
+        app->add_option("--earth-radius", o.earth_radius, "radius for --earth-model sphere, metres")
+            ->capture_default_str()
+            ->group("Geometry");
+    }
+    app->add_option("--z-unit", o.z_unit,
+                    "unit of the DEM's elevations when the band does not say (m, ft, us-ft)")
+        ->group("Input");
+    app->add_option("--band", o.band, "band of the DEM to read")
+        ->capture_default_str()
+        ->check(CLI::PositiveNumber)
+        ->group("Input");
+    if (which & kMethodOption) {
+        app->add_option("--method", o.method, "engine: fast, or reference (exact, slow)")
+            ->capture_default_str()
+            ->check(CLI::IsMember({"fast", "reference"}))
+            ->group("Engine");
+    }
+    app->add_option("--threads", o.threads, "worker threads (default: all cores)")
+        ->check(CLI::NonNegativeNumber)
+        ->group("Engine");
+    app->add_option("--summary", o.summary, "also write the summary as JSON to this file")
+        ->group("Output");
+    app->add_flag("--json", o.json, "print the summary as JSON on stdout instead of the table")
+        ->group("Output");
+    app->add_flag("--quiet", o.quiet, "no progress on stderr")->group("Output");
+    app->add_flag("--overwrite", o.overwrite, "replace existing output files")->group("Output");
+    if (which & kOutputOptions) {
+        app->add_option("--co", o.creation_options,
+                        "GDAL creation option KEY=VALUE for output GeoTIFFs (repeatable; default "
+                        "tiled, DEFLATE, predictor)")
+            ->group("Output");
+    }
+}
+
+// ---------------------------------------------------------------------------------------------
+
+TerminalProgress::TerminalProgress(bool quiet) : quiet_(quiet), tty_(isatty(STDERR_FILENO) != 0) {}
+TerminalProgress::~TerminalProgress() {
+    if (open_ && tty_ && !quiet_)
+        std::fputs("\n", stderr);
+}
+
+void TerminalProgress::begin(const std::string& label, std::int64_t total) {
+    label_ = label;
+    total_ = total > 0 ? total : 1;
+    last_shown_ = -1;
+    start_ = std::chrono::steady_clock::now();
+    open_ = true;
+    advance(0);
+}
+
+void TerminalProgress::advance(std::int64_t done) {
+    if (quiet_ || !open_)
+        return;
+    int percent = static_cast<int>(100.0 * static_cast<double>(done) / total_);
+    if (percent > 100)
+        percent = 100;
+    if (tty_) {
+        if (percent == last_shown_)
+            return;
+        last_shown_ = percent;
+        int filled = percent * 30 / 100;
+        std::fprintf(stderr, "\r%-24s [%s%s] %3d%%", label_.c_str(),
+                     std::string(filled, '#').c_str(), std::string(30 - filled, '.').c_str(),
+                     percent);
+        std::fflush(stderr);
+    } else {
+        int decile = percent / 10;
+        if (decile == last_shown_)
+            return;
+        last_shown_ = decile;
+        std::fprintf(stderr, "lookfar: %s %d%%\n", label_.c_str(), decile * 10);
+    }
+}
+
+void TerminalProgress::end() {
+    if (quiet_ || !open_)
+        return;
+    double s = std::chrono::duration<double>(std::chrono::steady_clock::now() - start_).count();
+    if (tty_) {
+        std::fprintf(stderr, "\r%-24s [%s] 100%% (%.1f s)\n", label_.c_str(),
+                     std::string(30, '#').c_str(), s);
+    } else {
+        if (last_shown_ < 10)
+            std::fprintf(stderr, "lookfar: %s 100%%\n", label_.c_str());
+        std::fprintf(stderr, "lookfar: %s done in %.1f s\n", label_.c_str(), s);
+    }
+    open_ = false;
+}
+
+bool TerminalProgress::cancelled() const {
+    return interruptFlag().load(std::memory_order_relaxed);
+}
+
+// ---------------------------------------------------------------------------------------------
+
+double parseHeightOption(const std::string& text, const std::string& what) {
+    double h = parseLengthMetres(text, what);
+    if (!(h >= 0))
+        throw UsageError(what + ": " + text + " is negative; heights are above ground");
+    if (h > 1e5)
+        throw UsageError(what + ": " + text + " is over 100 km above the ground");
+    return h;
+}
+
+double parseReachOption(const std::string& text) {
+    if (trim(text).empty())
+        return std::numeric_limits<double>::infinity();
+    double r = parseLengthMetres(text, "--reach");
+    if (!(r > 0))
+        throw UsageError("--reach: " + text + " must be a positive distance");
+    return r;
+}
+
+RunContext prepareRun(const std::string& command, const CommonOptions& options,
+                      const std::vector<std::string>& outputs,
+                      const std::vector<std::string>& extra_inputs) {
+    RunContext ctx;
+    ctx.start = std::chrono::steady_clock::now();
+    ctx.options = options;
+    ctx.progress = std::make_unique<TerminalProgress>(options.quiet);
+    // Option values first (exit 2) ...
+    ctx.observer_height_m = parseHeightOption(options.observer_height, "--observer-height");
+    ctx.target_height_m = parseHeightOption(options.target_height, "--target-height");
+    ctx.reach_m = parseReachOption(options.reach);
+    double radius = parseLengthMetres(options.earth_radius, "--earth-radius");
+    if (!(radius > 1000))
+        throw UsageError("--earth-radius: " + options.earth_radius +
+                         " is not a plausible radius (metres)");
+    EarthShape shape = parseEarthShape(options.earth_model);
+    EarthModel probe_earth(shape, Ellipsoid::wgs84(), radius, options.refraction);  // validates k
+    std::optional<LinearUnit> z_unit;
+    if (!options.z_unit.empty()) {
+        z_unit = parseLinearUnit(options.z_unit);
+        if (!z_unit)
+            throw UsageError("--z-unit: '" + options.z_unit + "' is not m, ft or us-ft");
+    }
+    if (!options.crs.empty())
+        validateCrs(options.crs, "--crs");
+    for (const auto& co : options.creation_options) {
+        if (co.find('=') == std::string::npos || co.front() == '=') {
+            throw UsageError("--co: '" + co + "' is not KEY=VALUE");
+        }
+    }
+#ifdef _OPENMP
+    if (options.threads > 0)
+        omp_set_num_threads(options.threads);
+#endif
+    // ... then the DEM (exit 3) ...
+    DemReadOptions read;
+    read.band = options.band;
+    read.z_unit = z_unit;
+    Dem probe = probeDem(options.dem, read);
+    // ... then the outputs, before any long work (exit 4).
+    ctx.inputs = {options.dem};
+    ctx.inputs.insert(ctx.inputs.end(), extra_inputs.begin(), extra_inputs.end());
+    for (const auto& out : outputs) {
+        if (!out.empty())
+            checkOutputPath(out, ctx.inputs, options.overwrite);
+    }
+    if (!options.summary.empty())
+        checkOutputPath(options.summary, ctx.inputs, options.overwrite);
+    for (std::size_t i = 0; i < outputs.size(); ++i) {
+        for (std::size_t j = i + 1; j < outputs.size(); ++j) {
+            if (!outputs[i].empty() && outputs[i] == outputs[j]) {
+                throw UsageError("the output path " + outputs[i] + " is given twice");
+            }
+        }
+    }
+    ctx.dem = readDem(options.dem, read);
+    ctx.earth = EarthModel(shape, ctx.dem.crs.ellipsoid, radius, options.refraction);
+
+    RunDescription& run = ctx.run;
+    run.command = command;
+    run.command_line = commandLine();
+    run.dem_path = options.dem;
+    run.crs_name = ctx.dem.crs.name;
+    run.crs_code = ctx.dem.crs.epsg;
+    run.width = ctx.dem.geometry.width();
+    run.height = ctx.dem.geometry.height();
+    run.cell_size_m = ctx.dem.geometry.nominalCellSizeM();
+    run.refraction = options.refraction;
+    run.earth_model = options.earth_model;
+    {
+        const auto& g = ctx.dem.geometry;
+        MapPoint centre{g.mapX((g.width() - 1) / 2.0), g.mapY((g.height() - 1) / 2.0)};
+        run.earth_radius_m = ctx.earth.nominalRadius(latitudeOf(ctx, centre));
+    }
+    run.reach_m = ctx.reach_m;
+    run.observer_height_m = ctx.observer_height_m;
+    run.target_height_m = ctx.target_height_m;
+    run.method = options.method;
+    return ctx;
+}
+
+MapPoint toDemCrs(const RunContext& ctx, const MapPoint& p) {
+    if (ctx.options.crs.empty())
+        return p;
+    CoordinateTransform t(ctx.options.crs, ctx.dem.crs.wkt);
+    return t.apply(p);
+}
+
+double latitudeOf(const RunContext& ctx, const MapPoint& p_dem) {
+    LonLatOf ll(ctx.dem.crs.wkt);
+    return ll.apply(p_dem).y;
+}
+
+Observer placeObserver(const RunContext& ctx, const std::string& what, double x, double y,
+                       double height_m, const std::string& name) {
+    MapPoint p = toDemCrs(ctx, {x, y});
+    const auto& g = ctx.dem.geometry;
+    if (!g.containsMap(p.x, p.y)) {
+        char buf[256];
+        std::snprintf(buf, sizeof buf,
+                      "%s %.10g,%.10g is outside the DEM %s (x %.10g to %.10g, y %.10g to %.10g)",
+                      what.c_str(), x, y, ctx.dem.path.c_str(), g.mapX(-0.5),
+                      g.mapX(g.width() - 0.5), g.mapY(g.height() - 0.5), g.mapY(-0.5));
+        throw InputError(buf);
+    }
+    Observer o;
+    o.name = name;
+    o.col = g.cellColOf(p.x);
+    o.row = g.cellRowOf(p.y);
+    o.height_m = height_m;
+    if (std::isnan(ctx.dem.z(o.col, o.row))) {
+        char buf[256];
+        std::snprintf(buf, sizeof buf, "%s %.10g,%.10g lies on a no-data cell of %s", what.c_str(),
+                      x, y, ctx.dem.path.c_str());
+        throw InputError(buf);
+    }
+    o.latitude_deg = latitudeOf(ctx, {g.mapX(o.col), g.mapY(o.row)});
+    return o;
+}
+
+RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
+                      double nodata) {
+    RasterSpec spec;
+    spec.path = path;
+    spec.width = ctx.dem.geometry.width();
+    spec.height = ctx.dem.geometry.height();
+    spec.bands = bands;
+    spec.type = type;
+    spec.nodata = nodata;
+    spec.geotransform = ctx.dem.geometry.geotransform();
+    spec.crs_wkt = ctx.dem.crs.wkt;
+    spec.metadata = rasterMetadata(ctx.run);
+    spec.creation_options = ctx.options.creation_options;
+    return spec;
+}
+
+void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
+               const void* data, const std::string& description, const std::string& unit) {
+    RasterSpec spec = outputSpec(ctx, path, type, 1, nodata);
+    spec.band_descriptions = {description};
+    spec.unit_type = unit;
+    RasterWriter writer(spec);
+    writer.writeBand(1, data);
+    writer.commit();
+}
+
+void writeTextFile(const std::string& path, const std::string& content) {
+    std::string temp = path + ".lookfar-" + std::to_string(getpid()) + ".tmp";
+    {
+        std::ofstream out(temp, std::ios::binary);
+        if (!out)
+            throw OutputError(path + ": cannot write the file");
+        out << content;
+        if (!out) {
+            std::remove(temp.c_str());
+            throw OutputError(path + ": writing failed");
+        }
+    }
+    if (interruptFlag().load()) {
+        std::remove(temp.c_str());
+        throw Interrupted();
+    }
+    if (std::rename(temp.c_str(), path.c_str()) != 0) {
+        std::remove(temp.c_str());
+        throw OutputError(path + ": cannot move the finished file into place");
+    }
+}
+
+void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& table) {
+    double elapsed =
+        std::chrono::duration<double>(std::chrono::steady_clock::now() - ctx.start).count();
+    summary["elapsed_s"] = std::round(elapsed * 1000.0) / 1000.0;
+    if (!ctx.options.summary.empty())
+        writeTextFile(ctx.options.summary, summary.dump(2) + "\n");
+    if (ctx.options.json) {
+        std::cout << summary.dump(2) << "\n";
+    } else {
+        std::cout << table;
+    }
+    std::cout.flush();
+}
+
+}  // namespace lookfar::cli

@@ -1,0 +1,135 @@
+#pragma once
+// What the subcommands share: the common options of DESIGN.md, opening the DEM, placing points,
+// writing rasters and summaries, progress on stderr. No math lives here.
+#include <CLI/CLI.hpp>
+
+#include <chrono>
+#include <cstdint>
+#include <functional>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "lookfar/core/Grid.hpp"
+#include "lookfar/core/Progress.hpp"
+#include "lookfar/earth/EarthModel.hpp"
+#include "lookfar/io/Crs.hpp"
+#include "lookfar/io/Dem.hpp"
+#include "lookfar/io/RasterWriter.hpp"
+#include "lookfar/report/Summary.hpp"
+#include "lookfar/viewshed/Observer.hpp"
+
+namespace lookfar::cli {
+
+/// A subcommand: its CLI11 app and what to run once it is parsed.
+struct Command {
+    CLI::App* app = nullptr;
+    std::function<void()> run;
+};
+
+/// Which of the common options a subcommand takes.
+enum CommonSet : unsigned {
+    kGeometryOptions = 1u << 0,  ///< --refraction --earth-model --earth-radius --reach
+    kHeightOptions = 1u << 1,    ///< --observer-height --target-height
+    kOutputOptions = 1u << 2,    ///< --co (raster outputs)
+    kMethodOption = 1u << 3,     ///< --method
+    kAllCommon = 0xFFu,
+};
+
+struct CommonOptions {
+    std::string dem;
+    std::string crs;
+    std::string observer_height = "1.7";
+    std::string target_height = "0";
+    std::string reach;
+    double refraction = EarthModel::kDefaultRefraction;
+    std::string earth_model = "ellipsoid";
+    std::string earth_radius = "6371008.8";
+    std::string z_unit;
+    int band = 1;
+    int threads = 0;
+    std::string summary;
+    bool json = false;
+    bool quiet = false;
+    bool overwrite = false;
+    std::vector<std::string> creation_options;
+    std::string method = "fast";
+};
+
+/// Adds the DEM positional argument and the common options to `app`.
+void addCommonOptions(CLI::App* app, CommonOptions& options, unsigned which = kAllCommon);
+
+/// Progress on stderr: a bar on a terminal, a line every 10 % otherwise, nothing with --quiet.
+class TerminalProgress final : public Progress {
+  public:
+    explicit TerminalProgress(bool quiet);
+    ~TerminalProgress() override;
+    void begin(const std::string& label, std::int64_t total) override;
+    void advance(std::int64_t done) override;
+    void end() override;
+    bool cancelled() const override;
+
+  private:
+    bool quiet_;
+    bool tty_;
+    std::string label_;
+    std::int64_t total_ = 0;
+    int last_shown_ = -1;
+    std::chrono::steady_clock::time_point start_;
+    bool open_ = false;
+};
+
+/// Everything a command needs once its options are parsed and checked.
+struct RunContext {
+    CommonOptions options;
+    Dem dem;
+    EarthModel earth;
+    double observer_height_m = 1.7;
+    double target_height_m = 0;
+    double reach_m = 0;  ///< infinity = unlimited
+    RunDescription run;
+    std::unique_ptr<TerminalProgress> progress;
+    std::chrono::steady_clock::time_point start;
+    std::vector<std::string> inputs;  ///< paths of every input (for output checks)
+};
+
+/// Validates the common options (exit 2 on bad values), checks every output path before any
+/// work (exit 4), then reads the DEM (exit 3). `outputs` are the paths this run will write.
+RunContext prepareRun(const std::string& command, const CommonOptions& options,
+                      const std::vector<std::string>& outputs,
+                      const std::vector<std::string>& extra_inputs = {});
+
+/// Parses a non-negative, finite height option (exit 2 otherwise).
+double parseHeightOption(const std::string& text, const std::string& what);
+/// Parses --reach: empty = unlimited, else a positive length.
+double parseReachOption(const std::string& text);
+
+/// Places a point given in --crs coordinates on the DEM: the cell that contains it.
+/// Throws InputError when outside the DEM or on no-data (naming the point and the DEM).
+Observer placeObserver(const RunContext& ctx, const std::string& what, double x, double y,
+                       double height_m, const std::string& name);
+/// Converts a point from --crs into the DEM's CRS.
+MapPoint toDemCrs(const RunContext& ctx, const MapPoint& p);
+/// Latitude (degrees) of a point given in the DEM's CRS.
+double latitudeOf(const RunContext& ctx, const MapPoint& p_dem);
+
+/// Raster spec for an output of the DEM's size, geotransform and CRS, with metadata.
+RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
+                      double nodata);
+/// Writes a one-band grid (uint8_t, uint16_t or float) atomically.
+void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
+               const void* data, const std::string& description, const std::string& unit = "");
+
+/// Writes the summary file (if --summary) and prints either the JSON (--json) or `table`.
+void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& table);
+
+/// Writes a text file atomically (temp + rename), refusing to overwrite unless allowed.
+void writeTextFile(const std::string& path, const std::string& content);
+
+/// The command line as typed, for metadata.
+std::string& commandLine();
+
+}  // namespace lookfar::cli

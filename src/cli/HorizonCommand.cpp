@@ -1,0 +1,14 @@
+// lookfar horizon: placeholder registered until its engine lands (see the issue tracker).
+#include "Commands.hpp"
+#include "lookfar/core/Errors.hpp"
+
+namespace lookfar::cli {
+
+Command addHorizonCommand(CLI::App& root) {
+    auto state = std::make_shared<CommonOptions>();
+    CLI::App* app = root.add_subcommand("horizon", "(not available yet)");
+    addCommonOptions(app, *state);
+    return {app, [] { throw InternalError("'horizon' is not available in this build yet"); }};
+}
+
+}  // namespace lookfar::cli

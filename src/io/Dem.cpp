@@ -1,0 +1,198 @@
+#include "lookfar/io/Dem.hpp"
+
+#include <cpl_conv.h>
+#include <gdal.h>
+#include <ogr_srs_api.h>
+#include <sys/stat.h>
+
+#include <cmath>
+#include <limits>
+
+#include "GdalSupport.hpp"
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/io/Crs.hpp"
+
+namespace lookfar {
+
+std::optional<LinearUnit> unitFromUnitType(const std::string& unit_type) {
+    if (trim(unit_type).empty())
+        return std::nullopt;
+    return parseLinearUnit(unit_type);
+}
+
+namespace {
+
+struct DatasetCloser {
+    GDALDatasetH ds;
+    ~DatasetCloser() {
+        if (ds)
+            GDALClose(ds);
+    }
+};
+
+CrsInfo crsOf(GDALDatasetH ds, const std::string& path) {
+    OGRSpatialReferenceH srs = GDALGetSpatialRef(ds);
+    if (!srs) {
+        throw InputError(path +
+                         ": the DEM has no coordinate reference system; assign one "
+                         "(e.g. with gdal_edit.py -a_srs) so distances can be measured");
+    }
+    CrsInfo info;
+    char* wkt = nullptr;
+    const char* wkt_options[] = {"FORMAT=WKT2_2019", nullptr};
+    if (OSRExportToWktEx(srs, &wkt, wkt_options) != OGRERR_NONE || !wkt) {
+        throw InputError(path + ": the DEM's CRS cannot be expressed as WKT");
+    }
+    info.wkt = wkt;
+    CPLFree(wkt);
+    const char* name = OSRGetName(srs);
+    info.name = name ? name : "unnamed";
+    const char* auth = OSRGetAuthorityName(srs, nullptr);
+    const char* code = OSRGetAuthorityCode(srs, nullptr);
+    if (auth && code)
+        info.epsg = std::string(auth) + ":" + code;
+    info.geographic = OSRIsGeographic(srs) != 0;
+    if (!info.geographic && !OSRIsProjected(srs)) {
+        throw InputError(path + ": the DEM's CRS (" + info.name +
+                         ") is neither projected nor geographic");
+    }
+    if (!info.geographic) {
+        char* unit_name = nullptr;
+        double metres = OSRGetLinearUnits(srs, &unit_name);
+        std::string uname = unit_name ? unit_name : "metre";
+        auto parsed = parseLinearUnit(uname);
+        info.horizontal_unit = parsed ? *parsed : LinearUnit{uname, metres};
+        info.horizontal_unit.metres = metres;  // GDAL's factor is authoritative
+    }
+    OGRErr err = OGRERR_NONE;
+    double a = OSRGetSemiMajor(srs, &err);
+    double inv_f = OSRGetInvFlattening(srs, &err);
+    info.ellipsoid = Ellipsoid{a, inv_f > 0 ? 1.0 / inv_f : 0.0};
+    return info;
+}
+
+Dem openAndDescribe(const std::string& path, const DemReadOptions& options, GDALDatasetH& ds) {
+    io_detail::ensureGdal();
+    struct stat st {};
+    if (stat(path.c_str(), &st) != 0 && path.rfind("/vsi", 0) != 0) {
+        throw InputError(path + ": no such DEM file");
+    }
+    ds = GDALOpenEx(path.c_str(), GDAL_OF_RASTER | GDAL_OF_READONLY, nullptr, nullptr, nullptr);
+    if (!ds) {
+        std::string why = io_detail::lastGdalError();
+        throw InputError(path + ": not a raster GDAL can read" +
+                         (why.empty() ? "" : " (" + why + ")"));
+    }
+    Dem dem;
+    dem.path = path;
+    dem.full_width = GDALGetRasterXSize(ds);
+    dem.full_height = GDALGetRasterYSize(ds);
+    GDALDriverH drv = GDALGetDatasetDriver(ds);
+    dem.driver = drv ? GDALGetDriverShortName(drv) : "";
+    int nbands = GDALGetRasterCount(ds);
+    if (nbands < 1)
+        throw InputError(path + ": the raster has no bands");
+    if (options.band < 1 || options.band > nbands) {
+        throw UsageError("--band: " + std::to_string(options.band) + " is not a band of " + path +
+                         " (it has " + std::to_string(nbands) + ")");
+    }
+    std::array<double, 6> gt{};
+    if (GDALGetGeoTransform(ds, gt.data()) != CE_None) {
+        throw InputError(path + ": the DEM has no geotransform (no georeferencing)");
+    }
+    if (gt[2] != 0.0 || gt[4] != 0.0) {
+        throw InputError(path + ": the DEM's geotransform is rotated or sheared (terms " +
+                         std::to_string(gt[2]) + ", " + std::to_string(gt[4]) +
+                         "); warp it to a north-up grid first (e.g. gdalwarp)");
+    }
+    if (gt[1] == 0.0 || gt[5] == 0.0)
+        throw InputError(path + ": the DEM has a zero cell size");
+    if (gt[5] > 0.0) {
+        throw InputError(path +
+                         ": the DEM is stored south-up (positive row step); "
+                         "warp it to a north-up grid first");
+    }
+    dem.crs = crsOf(ds, path);
+    GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
+    int has_nodata = 0;
+    double nd = GDALGetRasterNoDataValue(band, &has_nodata);
+    if (has_nodata)
+        dem.nodata = nd;
+    const char* unit_type = GDALGetRasterUnitType(band);
+    std::string ut = unit_type ? unit_type : "";
+    if (options.z_unit) {
+        dem.z_unit = *options.z_unit;
+    } else if (auto u = unitFromUnitType(ut)) {
+        dem.z_unit = *u;
+        dem.z_unit_from_band = true;
+    } else if (!trim(ut).empty()) {
+        throw InputError(path + ": the band's unit type '" + ut +
+                         "' is not a length lookfar knows; give --z-unit m|ft|us-ft");
+    } else {
+        dem.z_unit = LinearUnit{"metre", 1.0};
+    }
+
+    int c0 = options.win_col, r0 = options.win_row;
+    int w = options.win_width ? options.win_width : dem.full_width;
+    int h = options.win_height ? options.win_height : dem.full_height;
+    if (c0 < 0 || r0 < 0 || w <= 0 || h <= 0 || c0 + w > dem.full_width ||
+        r0 + h > dem.full_height) {
+        throw InternalError("window outside the raster " + path);
+    }
+    std::array<double, 6> wgt = gt;
+    wgt[0] = gt[0] + c0 * gt[1];
+    wgt[3] = gt[3] + r0 * gt[5];
+    double unit = dem.crs.geographic ? 1.0 : dem.crs.horizontal_unit.metres;
+    dem.geometry = GridGeometry(w, h, wgt, dem.crs.geographic, unit, dem.crs.ellipsoid);
+    return dem;
+}
+
+}  // namespace
+
+Dem probeDem(const std::string& path, const DemReadOptions& options) {
+    GDALDatasetH ds = nullptr;
+    DatasetCloser closer{nullptr};
+    Dem dem = openAndDescribe(path, options, ds);
+    closer.ds = ds;
+    return dem;
+}
+
+Dem readDem(const std::string& path, const DemReadOptions& options) {
+    GDALDatasetH ds = nullptr;
+    DatasetCloser closer{nullptr};
+    Dem dem;
+    try {
+        dem = openAndDescribe(path, options, ds);
+    } catch (...) {
+        if (ds)
+            GDALClose(ds);
+        throw;
+    }
+    closer.ds = ds;
+    int w = dem.geometry.width(), h = dem.geometry.height();
+    dem.z = Grid<float>(w, h);
+    GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
+    if (GDALRasterIO(band, GF_Read, options.win_col, options.win_row, w, h, dem.z.data(), w, h,
+                     GDT_Float32, 0, 0) != CE_None) {
+        throw InputError(path + ": reading the elevations failed (" + io_detail::lastGdalError() +
+                         ")");
+    }
+    const float nan = std::numeric_limits<float>::quiet_NaN();
+    const bool has_nd = dem.nodata.has_value();
+    const float nd = has_nd ? static_cast<float>(*dem.nodata) : 0.0f;
+    const bool nd_is_nan = has_nd && std::isnan(*dem.nodata);
+    const double scale = dem.z_unit.metres;
+    float* z = dem.z.data();
+    const std::size_t n = dem.z.size();
+    for (std::size_t i = 0; i < n; ++i) {
+        float v = z[i];
+        if ((has_nd && !nd_is_nan && v == nd) || !std::isfinite(v)) {
+            z[i] = nan;
+        } else if (scale != 1.0) {
+            z[i] = static_cast<float>(v * scale);
+        }
+    }
+    return dem;
+}
+
+}  // namespace lookfar

@@ -1,0 +1,180 @@
+#include "lookfar/io/RasterWriter.hpp"
+
+#include <cpl_string.h>
+#include <gdal.h>
+#include <ogr_srs_api.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <atomic>
+#include <cstdio>
+
+#include "GdalSupport.hpp"
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Progress.hpp"
+
+namespace lookfar {
+
+namespace {
+
+std::string parentFolder(const std::string& path) {
+    auto slash = path.find_last_of('/');
+    if (slash == std::string::npos)
+        return ".";
+    if (slash == 0)
+        return "/";
+    return path.substr(0, slash);
+}
+
+GDALDataType gdalType(PixelType t) {
+    switch (t) {
+        case PixelType::Byte:
+            return GDT_Byte;
+        case PixelType::UInt16:
+            return GDT_UInt16;
+        case PixelType::Float32:
+            return GDT_Float32;
+    }
+    return GDT_Float32;
+}
+
+std::atomic<int> g_temp_counter{0};
+
+}  // namespace
+
+std::vector<std::string> defaultCreationOptions(PixelType type) {
+    return {"TILED=YES",
+            "BLOCKXSIZE=256",
+            "BLOCKYSIZE=256",
+            "COMPRESS=DEFLATE",
+            type == PixelType::Float32 ? "PREDICTOR=3" : "PREDICTOR=2",
+            "BIGTIFF=IF_SAFER"};
+}
+
+void checkOutputPath(const std::string& path, const std::vector<std::string>& inputs,
+                     bool overwrite) {
+    if (path.empty())
+        throw OutputError("an output path is empty");
+    std::string folder = parentFolder(path);
+    struct stat fst {};
+    if (stat(folder.c_str(), &fst) != 0 || !S_ISDIR(fst.st_mode)) {
+        throw OutputError(path + ": the folder '" + folder + "' does not exist");
+    }
+    if (access(folder.c_str(), W_OK) != 0) {
+        throw OutputError(path + ": the folder '" + folder + "' is not writable");
+    }
+    struct stat ost {};
+    if (stat(path.c_str(), &ost) == 0) {
+        for (const auto& in : inputs) {
+            struct stat ist {};
+            if (!in.empty() && stat(in.c_str(), &ist) == 0 && ist.st_dev == ost.st_dev &&
+                ist.st_ino == ost.st_ino) {
+                throw OutputError(path + ": the output is the same file as the input '" + in +
+                                  "'; choose another output path");
+            }
+        }
+        if (S_ISDIR(ost.st_mode))
+            throw OutputError(path + ": the output path is a folder");
+        if (!overwrite) {
+            throw OutputError(path + ": the file exists; give --overwrite to replace it");
+        }
+        if (access(path.c_str(), W_OK) != 0) {
+            throw OutputError(path + ": the existing file is not writable");
+        }
+    }
+}
+
+RasterWriter::RasterWriter(RasterSpec spec) : spec_(std::move(spec)) {
+    io_detail::ensureGdal();
+    GDALDriverH drv = GDALGetDriverByName("GTiff");
+    if (!drv)
+        throw InternalError("GDAL has no GTiff driver");
+    temp_path_ = parentFolder(spec_.path) + "/." +
+                 spec_.path.substr(spec_.path.find_last_of('/') + 1) + ".lookfar-" +
+                 std::to_string(getpid()) + "-" + std::to_string(g_temp_counter++) + ".tmp.tif";
+    std::vector<std::string> opts = spec_.creation_options.empty()
+                                        ? defaultCreationOptions(spec_.type)
+                                        : spec_.creation_options;
+    if (!spec_.creation_options.empty()) {
+        // User options are added to the defaults; a user KEY replaces the default KEY.
+        std::vector<std::string> merged;
+        for (const auto& d : defaultCreationOptions(spec_.type)) {
+            std::string key = d.substr(0, d.find('='));
+            bool replaced = false;
+            for (const auto& u : spec_.creation_options) {
+                if (EQUAL(u.substr(0, u.find('=')).c_str(), key.c_str()))
+                    replaced = true;
+            }
+            if (!replaced)
+                merged.push_back(d);
+        }
+        merged.insert(merged.end(), spec_.creation_options.begin(), spec_.creation_options.end());
+        opts = merged;
+    }
+    char** copts = nullptr;
+    for (const auto& o : opts)
+        copts = CSLAddString(copts, o.c_str());
+    GDALDatasetH ds = GDALCreate(drv, temp_path_.c_str(), spec_.width, spec_.height, spec_.bands,
+                                 gdalType(spec_.type), copts);
+    CSLDestroy(copts);
+    if (!ds) {
+        std::remove(temp_path_.c_str());
+        throw OutputError(spec_.path + ": cannot create the raster (" + io_detail::lastGdalError() +
+                          ")");
+    }
+    dataset_ = ds;
+    GDALSetGeoTransform(ds, spec_.geotransform.data());
+    if (!spec_.crs_wkt.empty())
+        GDALSetProjection(ds, spec_.crs_wkt.c_str());
+    for (const auto& [key, value] : spec_.metadata) {
+        GDALSetMetadataItem(ds, key.c_str(), value.c_str(), nullptr);
+    }
+    for (int b = 1; b <= spec_.bands; ++b) {
+        GDALRasterBandH band = GDALGetRasterBand(ds, b);
+        GDALSetRasterNoDataValue(band, spec_.nodata);
+        if (static_cast<int>(spec_.band_descriptions.size()) >= b) {
+            GDALSetDescription(band, spec_.band_descriptions[b - 1].c_str());
+        }
+        if (!spec_.unit_type.empty())
+            GDALSetRasterUnitType(band, spec_.unit_type.c_str());
+    }
+}
+
+RasterWriter::~RasterWriter() {
+    if (dataset_)
+        GDALClose(static_cast<GDALDatasetH>(dataset_));
+    if (!committed_)
+        std::remove(temp_path_.c_str());
+}
+
+void RasterWriter::writeRows(int band, int row0, int rows, const void* data) {
+    if (!dataset_)
+        throw InternalError("write to a closed raster " + spec_.path);
+    GDALRasterBandH b = GDALGetRasterBand(static_cast<GDALDatasetH>(dataset_), band);
+    if (GDALRasterIO(b, GF_Write, 0, row0, spec_.width, rows, const_cast<void*>(data), spec_.width,
+                     rows, gdalType(spec_.type), 0, 0) != CE_None) {
+        throw OutputError(spec_.path + ": writing failed (" + io_detail::lastGdalError() + ")");
+    }
+}
+
+void RasterWriter::commit() {
+    if (!dataset_)
+        throw InternalError("commit of a closed raster " + spec_.path);
+    GDALDatasetH ds = static_cast<GDALDatasetH>(dataset_);
+    dataset_ = nullptr;
+    CPLErrorReset();
+    GDALFlushCache(ds);
+    GDALClose(ds);
+    if (CPLGetLastErrorType() >= CE_Failure) {
+        throw OutputError(spec_.path + ": finishing the file failed (" +
+                          io_detail::lastGdalError() + ")");
+    }
+    if (interruptFlag().load())
+        throw Interrupted();
+    if (std::rename(temp_path_.c_str(), spec_.path.c_str()) != 0) {
+        throw OutputError(spec_.path + ": cannot move the finished file into place");
+    }
+    committed_ = true;
+}
+
+}  // namespace lookfar

@@ -1,0 +1,103 @@
+#include "lookfar/viewshed/SightlineRule.hpp"
+
+#include <cmath>
+#include <cstdlib>
+#include <limits>
+
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Units.hpp"
+
+namespace lookfar {
+
+SightlineRule::SightlineRule(const Grid<float>& dem, const GridGeometry& geometry,
+                             const EarthModel& earth, const Observer& observer)
+    : dem_(dem), geometry_(geometry), observer_(observer) {
+    if (!dem.contains(observer.col, observer.row)) {
+        throw InputError("the observer '" + observer.name + "' is outside the DEM");
+    }
+    float ground = dem(observer.col, observer.row);
+    if (std::isnan(ground)) {
+        throw InputError("the observer '" + observer.name + "' stands on a no-data cell");
+    }
+    eye_m_ = ground + observer.height_m;
+    frame_ = geometry.localFrame(observer.col, observer.row);
+    curvature_ = earth.curvatureAt(observer.latitude_deg);
+}
+
+SightlineVerdict SightlineRule::judge(int col, int row, double target_height_m) const {
+    SightlineVerdict v;
+    const int c0 = observer_.col, r0 = observer_.row;
+    const float ground = dem_(col, row);
+    const double east = frame_.east(col, row);
+    const double north = frame_.north(row);
+    v.distance_m = std::hypot(east, north);
+    if (std::isnan(ground)) {
+        v.nodata = true;
+        return v;
+    }
+    const double drop = curvature_.drop(east, north);
+    const double rise = ground + target_height_m - drop - eye_m_;  // z_t − Δ − z_e
+    v.angle_deg = (v.distance_m > 0) ? std::atan2(rise, v.distance_m) * kRadToDeg : 0.0;
+    if (col == c0 && row == r0) {
+        v.visible = true;
+        v.margin_m = target_height_m;
+        v.angle_deg = target_height_m >= observer_.height_m ? 90.0 : -90.0;
+        if (target_height_m == observer_.height_m)
+            v.angle_deg = 0.0;
+        return v;
+    }
+
+    const int dc = col - c0, dr = row - r0;
+    double max_gain = -std::numeric_limits<double>::infinity();
+    auto consider = [&](double t, double z) {
+        if (std::isnan(z))
+            return;  // no-data never blocks
+        double gain = (z - t * t * drop - eye_m_) / t;
+        if (gain > max_gain)
+            max_gain = gain;
+    };
+    // Column lines strictly between c0 and c1.
+    if (dc != 0) {
+        const int step = dc > 0 ? 1 : -1;
+        for (int i = c0 + step; i != col; i += step) {
+            double t = static_cast<double>(i - c0) / dc;
+            double y = r0 + t * dr;
+            int ya = static_cast<int>(std::floor(y));
+            double fy = y - ya;
+            double z;
+            if (fy == 0.0) {
+                z = dem_(i, ya);
+            } else {
+                z = (1.0 - fy) * dem_(i, ya) + fy * dem_(i, ya + 1);
+            }
+            consider(t, z);
+        }
+    }
+    // Row lines strictly between r0 and r1.
+    if (dr != 0) {
+        const int step = dr > 0 ? 1 : -1;
+        for (int j = r0 + step; j != row; j += step) {
+            double t = static_cast<double>(j - r0) / dr;
+            double x = c0 + t * dc;
+            int xa = static_cast<int>(std::floor(x));
+            double fx = x - xa;
+            double z;
+            if (fx == 0.0) {
+                z = dem_(xa, j);
+            } else {
+                z = (1.0 - fx) * dem_(xa, j) + fx * dem_(xa + 1, j);
+            }
+            consider(t, z);
+        }
+    }
+    if (max_gain == -std::numeric_limits<double>::infinity()) {
+        v.visible = true;
+        v.margin_m = target_height_m;
+        return v;
+    }
+    v.margin_m = rise - max_gain;
+    v.visible = v.margin_m >= 0.0;
+    return v;
+}
+
+}  // namespace lookfar

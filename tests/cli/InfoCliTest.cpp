@@ -1,0 +1,117 @@
+// `lookfar info` and the bad-input rules of DESIGN.md, run on the built binary.
+#include <gtest/gtest.h>
+
+#include <nlohmann/json.hpp>
+
+#include <fstream>
+
+#include "../support/CliRunner.hpp"
+
+using namespace lookfar::testing;
+
+TEST(InfoCliTest, DescribesTheDemoDem) {
+    CliResult r = runLookfar({"info", testRaster("demo_coast.tif"), "--json"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    auto j = nlohmann::json::parse(r.out);
+    EXPECT_EQ(j["tool"], "lookfar");
+    EXPECT_EQ(j["dem"]["crs"], "EPSG:32630");
+    EXPECT_EQ(j["dem"]["width"], 500);
+    EXPECT_EQ(j["dem"]["height"], 400);
+    EXPECT_DOUBLE_EQ(j["dem"]["cell_size_m"].get<double>(), 25.0);
+    EXPECT_NEAR(j["elevation_m"]["max"].get<double>(), 900.0, 0.05);
+    // The lon/lat extent comes from PROJ: UTM 30N around x = 426 km lies west of −3°.
+    EXPECT_LT(j["dem"]["extent_lonlat"]["east"].get<double>(), -3.0);
+}
+
+TEST(InfoCliTest, UsSurveyFeetAreConvertedToMetres) {
+    CliResult ft = runLookfar({"info", testRaster("twin_usft.tif"), "--json"});
+    CliResult m = runLookfar({"info", testRaster("twin_metres.tif"), "--json"});
+    ASSERT_EQ(ft.exit_code, 0) << ft.err;
+    ASSERT_EQ(m.exit_code, 0) << m.err;
+    auto jf = nlohmann::json::parse(ft.out), jm = nlohmann::json::parse(m.out);
+    EXPECT_EQ(jf["dem"]["horizontal_unit"], "US survey foot");
+    EXPECT_EQ(jf["dem"]["vertical_unit"], "US survey foot");
+    EXPECT_NEAR(jf["dem"]["cell_size_m"].get<double>(), jm["dem"]["cell_size_m"].get<double>(),
+                1e-4);
+    EXPECT_NEAR(jf["elevation_m"]["max"].get<double>(), jm["elevation_m"]["max"].get<double>(),
+                1e-3);
+    EXPECT_NEAR(jf["elevation_m"]["mean"].get<double>(), jm["elevation_m"]["mean"].get<double>(),
+                1e-3);
+}
+
+TEST(InfoCliTest, CountsNoDataCells) {
+    CliResult r = runLookfar({"info", testRaster("nodata_hole.tif"), "--json"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    auto j = nlohmann::json::parse(r.out);
+    EXPECT_EQ(j["dem"]["nodata_cells"], 100);
+    EXPECT_DOUBLE_EQ(j["dem"]["nodata_value"].get<double>(), -9999.0);
+}
+
+TEST(InfoCliTest, GeographicDemUsesEllipsoidalCellSizes) {
+    CliResult r = runLookfar({"info", testRaster("geographic_hills.tif"), "--json"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    auto j = nlohmann::json::parse(r.out);
+    EXPECT_TRUE(j["dem"]["geographic"].get<bool>());
+    // 1/1200° of latitude ≈ 92.6 m; of longitude at 47° ≈ 63.4 m (WGS84 M and N cos φ).
+    EXPECT_NEAR(j["dem"]["cell_height_m"].get<double>(), 92.6, 0.2);
+    EXPECT_NEAR(j["dem"]["cell_width_m"].get<double>(), 63.4, 0.2);
+}
+
+TEST(BadInputCliTest, MissingDemIsBadInputNotUsage) {
+    CliResult r = runLookfar({"info", "/no/such/dem.tif"});
+    EXPECT_EQ(r.exit_code, 3);
+    EXPECT_NE(firstLine(r.err).find("/no/such/dem.tif"), std::string::npos) << r.err;
+}
+
+TEST(BadInputCliTest, FileThatIsNotARaster) {
+    CliResult r = runLookfar({"info", testRaster("not_a_raster.tif")});
+    EXPECT_EQ(r.exit_code, 3);
+    EXPECT_NE(firstLine(r.err).find("not a raster"), std::string::npos) << r.err;
+}
+
+TEST(BadInputCliTest, RotatedGeotransformIsRefused) {
+    CliResult r = runLookfar({"info", testRaster("rotated.tif")});
+    EXPECT_EQ(r.exit_code, 3);
+    EXPECT_NE(firstLine(r.err).find("rotated"), std::string::npos) << r.err;
+}
+
+TEST(BadInputCliTest, UnknownCrsStringIsAUsageError) {
+    CliResult r = runLookfar({"info", testRaster("wall.tif"), "--crs", "EPSG:99999999"});
+    EXPECT_EQ(r.exit_code, 2);
+    EXPECT_NE(firstLine(r.err).find("EPSG:99999999"), std::string::npos) << r.err;
+}
+
+TEST(BadInputCliTest, UnknownOptionIsAUsageError) {
+    CliResult r = runLookfar({"info", testRaster("wall.tif"), "--no-such-option"});
+    EXPECT_EQ(r.exit_code, 2);
+}
+
+TEST(BadInputCliTest, UnwritableOutputFolder) {
+    CliResult r =
+        runLookfar({"info", testRaster("wall.tif"), "--summary", "/no/such/folder/s.json"});
+    EXPECT_EQ(r.exit_code, 4);
+    EXPECT_NE(firstLine(r.err).find("/no/such/folder"), std::string::npos) << r.err;
+}
+
+TEST(BadInputCliTest, ExistingOutputNeedsOverwrite) {
+    ScratchDir dir;
+    std::string out = dir.file("summary.json");
+    std::ofstream(out) << "keep me";
+    CliResult r = runLookfar({"info", testRaster("wall.tif"), "--summary", out});
+    EXPECT_EQ(r.exit_code, 4);
+    EXPECT_NE(firstLine(r.err).find("--overwrite"), std::string::npos) << r.err;
+    EXPECT_EQ(readFile(out), "keep me");
+}
+
+TEST(BadInputCliTest, OutputEqualToInputIsAlwaysRefused) {
+    ScratchDir dir;
+    std::string copy = dir.file("dem.tif");
+    std::ofstream(copy, std::ios::binary) << readFile(testRaster("wall.tif"));
+    std::string before = readFile(copy);
+    // Another spelling of the same file is still the same file.
+    std::string other_spelling = dir.path() + "/./dem.tif";
+    CliResult r = runLookfar({"info", copy, "--summary", other_spelling, "--overwrite"});
+    EXPECT_EQ(r.exit_code, 4);
+    EXPECT_NE(firstLine(r.err).find("same file"), std::string::npos) << r.err;
+    EXPECT_EQ(readFile(copy), before);
+}

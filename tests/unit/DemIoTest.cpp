@@ -1,0 +1,82 @@
+// Reading DEMs and writing rasters through GDAL (the io layer).
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+#include "../support/CliRunner.hpp"
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/io/Dem.hpp"
+#include "lookfar/io/RasterWriter.hpp"
+
+using namespace lookfar;
+using namespace lookfar::testing;
+
+TEST(DemIoTest, NoDataBecomesNaN) {
+    Dem dem = readDem(testRaster("nodata_hole.tif"));
+    EXPECT_TRUE(std::isnan(dem.z(50, 50)));
+    EXPECT_FALSE(std::isnan(dem.z(10, 10)));
+}
+
+TEST(DemIoTest, UsSurveyFeetBecomeMetres) {
+    Dem ft = readDem(testRaster("twin_usft.tif"));
+    Dem m = readDem(testRaster("twin_metres.tif"));
+    ASSERT_EQ(ft.z.size(), m.z.size());
+    EXPECT_EQ(ft.z_unit.name, "US survey foot");
+    double worst = 0;
+    for (std::size_t i = 0; i < m.z.size(); ++i)
+        worst = std::max(worst, double(std::fabs(ft.z.data()[i] - m.z.data()[i])));
+    EXPECT_LT(worst, 1e-3);
+    EXPECT_NEAR(ft.geometry.cellWidthM(0), m.geometry.cellWidthM(0), 1e-4);
+}
+
+TEST(DemIoTest, ZUnitOverride) {
+    DemReadOptions o;
+    o.z_unit = LinearUnit{"foot", 0.3048};
+    Dem dem = readDem(testRaster("wall.tif"), o);
+    EXPECT_NEAR(dem.z(100, 50), 50 * 0.3048, 1e-5);
+}
+
+TEST(DemIoTest, ReadsAWindow) {
+    DemReadOptions o;
+    o.win_col = 90;
+    o.win_row = 10;
+    o.win_width = 20;
+    o.win_height = 5;
+    Dem full = readDem(testRaster("wall.tif"));
+    Dem win = readDem(testRaster("wall.tif"), o);
+    EXPECT_EQ(win.z.width(), 20);
+    EXPECT_EQ(win.z(10, 0), full.z(100, 10));
+    EXPECT_DOUBLE_EQ(win.geometry.mapX(0), full.geometry.mapX(90));
+    EXPECT_DOUBLE_EQ(win.geometry.mapY(0), full.geometry.mapY(10));
+}
+
+TEST(DemIoTest, WriterLeavesNoFileWithoutCommit) {
+    ScratchDir dir;
+    RasterSpec spec;
+    spec.path = dir.file("out.tif");
+    spec.width = spec.height = 8;
+    spec.type = PixelType::Byte;
+    spec.nodata = 255;
+    spec.metadata = {{"LOOKFAR_TEST", "yes"}};
+    {
+        RasterWriter w(spec);
+        std::vector<std::uint8_t> data(64, 1);
+        w.writeBand(1, data.data());
+    }  // destroyed without commit, as on an error
+    EXPECT_TRUE(dir.entries().empty());
+    {
+        RasterWriter w(spec);
+        std::vector<std::uint8_t> data(64, 1);
+        w.writeBand(1, data.data());
+        w.commit();
+    }
+    EXPECT_EQ(dir.entries(), std::vector<std::string>{"out.tif"});
+}
+
+TEST(DemIoTest, OutputChecks) {
+    ScratchDir dir;
+    EXPECT_THROW(checkOutputPath("/no/such/dir/x.tif", {}, false), OutputError);
+    EXPECT_NO_THROW(checkOutputPath(dir.file("x.tif"), {}, false));
+    EXPECT_THROW(checkOutputPath(testRaster("wall.tif"), {testRaster("wall.tif")}, true),
+                 OutputError);
+}
