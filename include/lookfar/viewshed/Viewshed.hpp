@@ -38,4 +38,15 @@ ViewshedGrids referenceViewshed(const Grid<float>& dem, const GridGeometry& geom
                                 const ViewshedOptions& options,
                                 Progress& progress = silentProgress());
 
+/// The fast engine (see FastViewshed.cpp for its method and error behaviour).
+ViewshedGrids fastViewshed(const Grid<float>& dem, const GridGeometry& geometry,
+                           const EarthModel& earth, const Observer& observer,
+                           const ViewshedOptions& options, Progress& progress = silentProgress());
+
+/// Runs the engine named in options.method.
+ViewshedGrids computeViewshed(const Grid<float>& dem, const GridGeometry& geometry,
+                              const EarthModel& earth, const Observer& observer,
+                              const ViewshedOptions& options,
+                              Progress& progress = silentProgress());
+
 }  // namespace lookfar
