@@ -80,3 +80,85 @@ TEST(DemIoTest, OutputChecks) {
     EXPECT_THROW(checkOutputPath(testRaster("wall.tif"), {testRaster("wall.tif")}, true),
                  OutputError);
 }
+
+#include <gdal.h>
+#include <gdal_utils.h>
+
+namespace {
+std::string readMetadata(const std::string& path, const char* key, const char* domain = nullptr) {
+    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
+    if (!ds)
+        return "";
+    const char* v = GDALGetMetadataItem(ds, key, domain);
+    std::string out = v ? v : "";
+    GDALClose(ds);
+    return out;
+}
+}  // namespace
+
+TEST(DemIoTest, WriterRecordsMetadataDescriptionsAndCreationOptions) {
+    ScratchDir dir;
+    RasterSpec spec;
+    spec.path = dir.file("out.tif");
+    spec.width = spec.height = 16;
+    spec.bands = 2;
+    spec.type = PixelType::Float32;
+    spec.nodata = -9999;
+    spec.geotransform = {1000, 10, 0, 2000, 0, -10};
+    spec.band_descriptions = {"first band", "second band"};
+    spec.metadata = {{"LOOKFAR_REFRACTION", "0.13"}};
+    spec.creation_options = {"COMPRESS=LZW"};
+    {
+        RasterWriter w(spec);
+        std::vector<float> data(256, 2.5f);
+        w.writeBand(1, data.data());
+        w.writeBand(2, data.data());
+        w.commit();
+    }
+    EXPECT_EQ(readMetadata(spec.path, "LOOKFAR_REFRACTION"), "0.13");
+    EXPECT_EQ(readMetadata(spec.path, "COMPRESSION", "IMAGE_STRUCTURE"), "LZW");
+    GDALDatasetH ds = GDALOpen(spec.path.c_str(), GA_ReadOnly);
+    ASSERT_NE(ds, nullptr);
+    EXPECT_STREQ(GDALGetDescription(GDALGetRasterBand(ds, 2)), "second band");
+    int has = 0;
+    EXPECT_DOUBLE_EQ(GDALGetRasterNoDataValue(GDALGetRasterBand(ds, 1), &has), -9999);
+    int bx = 0, by = 0;
+    GDALGetBlockSize(GDALGetRasterBand(ds, 1), &bx, &by);
+    EXPECT_EQ(bx, 256);  // tiled by default; a user option adds to the defaults
+    GDALClose(ds);
+}
+
+// Any format GDAL reads: a VRT mosaic of two halves of a DEM reads as the whole DEM.
+TEST(DemIoTest, ReadsAVrtMosaic) {
+    ScratchDir dir;
+    std::string src = testRaster("cone.tif");
+    GDALDatasetH whole = GDALOpen(src.c_str(), GA_ReadOnly);
+    ASSERT_NE(whole, nullptr);
+    std::string west = dir.file("west.tif"), east = dir.file("east.tif");
+    auto cut = [&](const std::string& out, const char* xoff, const char* xsize) {
+        const char* argv[] = {"-srcwin", xoff, "0", xsize, "301", nullptr};
+        GDALTranslateOptions* o = GDALTranslateOptionsNew(const_cast<char**>(argv), nullptr);
+        GDALDatasetH d = GDALTranslate(out.c_str(), whole, o, nullptr);
+        GDALTranslateOptionsFree(o);
+        GDALClose(d);
+    };
+    cut(west, "0", "150");
+    cut(east, "150", "151");
+    GDALClose(whole);
+    const char* inputs[] = {west.c_str(), east.c_str()};
+    std::string vrt = dir.file("mosaic.vrt");
+    GDALDatasetH v = GDALBuildVRT(vrt.c_str(), 2, nullptr, inputs, nullptr, nullptr);
+    ASSERT_NE(v, nullptr);
+    GDALClose(v);
+    Dem mosaic = readDem(vrt);
+    Dem full = readDem(src);
+    EXPECT_EQ(mosaic.driver, "VRT");
+    ASSERT_EQ(mosaic.z.size(), full.z.size());
+    EXPECT_EQ(mosaic.z.cells(), full.z.cells());
+}
+
+TEST(DemIoTest, BadBandIsAUsageError) {
+    DemReadOptions o;
+    o.band = 3;
+    EXPECT_THROW(readDem(testRaster("wall.tif"), o), UsageError);
+}
