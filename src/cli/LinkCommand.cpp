@@ -1,14 +1,406 @@
-// lookfar link: placeholder registered until its engine lands (see the issue tracker).
+// lookfar link: the path profile between two points, with the first Fresnel zone of a radio link.
+// This file places the samples (PROJ geodesic or straight map line) and writes the outputs; the
+// profile itself is lookfar/link/PathProfile.
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <limits>
+
 #include "Commands.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Units.hpp"
+#include "lookfar/io/Crs.hpp"
+#include "lookfar/link/PathProfile.hpp"
+#include "lookfar/report/SvgPlot.hpp"
+#include "lookfar/report/TextTable.hpp"
 
 namespace lookfar::cli {
 
+namespace {
+
+struct LinkState {
+    CommonOptions options;
+    std::string from, to;
+    std::string from_height = "1.7", to_height = "1.7";
+    std::string frequency_mhz;  ///< empty = no Fresnel zone
+    std::string csv, plot;
+};
+
+std::string fmt(const char* format, double v) {
+    if (!std::isfinite(v))
+        return "";
+    char buf[64];
+    std::snprintf(buf, sizeof buf, format, v);
+    return buf;
+}
+
+double wrap360(double az) {
+    az = std::fmod(az, 360.0);
+    if (az < 0)
+        az += 360.0;
+    return az >= 360.0 ? 0.0 : az;
+}
+
+/// The map position of every sample, in the DEM's CRS, next to what the engine gets.
+struct PlacedPath {
+    std::vector<MapPoint> map;
+    PathProfileInput input;
+    double length_m = 0;  ///< PROJ geodesic on the DEM's ellipsoid
+    GeodesicLine line;
+    MapPoint a_ll, b_ll;  ///< lon/lat of the ends
+};
+
+PlacedPath placePath(const RunContext& ctx, const MapPoint& a, const MapPoint& b) {
+    const GridGeometry& g = ctx.dem.geometry;
+    PlacedPath p;
+    const LonLatOf ll(ctx.dem.crs.wkt);
+    const Geodesic geo(ctx.dem.crs.ellipsoid);
+    p.a_ll = ll.apply(a);
+    p.b_ll = ll.apply(b);
+    p.line = geo.inverse(p.a_ll.x, p.a_ll.y, p.b_ll.x, p.b_ll.y);
+    p.length_m = p.line.distance_m;
+    if (!(p.length_m > 0)) {
+        throw UsageError("--from and --to are the same point; a link needs two different ends");
+    }
+    // Half the smaller cell side along the path, metres.
+    double cell_m = std::numeric_limits<double>::infinity();
+    for (double y : {a.y, 0.5 * (a.y + b.y), b.y}) {
+        int row = static_cast<int>(std::floor(g.rowOf(y) + 0.5));
+        row = std::max(0, std::min(g.height() - 1, row));
+        cell_m = std::fmin(cell_m, std::fmin(g.cellWidthM(row), g.cellHeightM(row)));
+    }
+    double map_len_m =
+        g.geographic() ? 0.0 : std::hypot(b.x - a.x, b.y - a.y) * g.linearUnitMetres();
+    const double longest = std::fmax(p.length_m, map_len_m);
+    const int n = std::max(2, static_cast<int>(std::ceil(longest / (0.5 * cell_m))));
+    p.map.resize(n + 1);
+    p.input.samples.resize(n + 1);
+    for (int i = 0; i <= n; ++i) {
+        const double f = static_cast<double>(i) / n;
+        MapPoint m;
+        if (i == 0) {
+            m = a;
+        } else if (i == n) {
+            m = b;
+        } else if (g.geographic()) {
+            m = geo.direct(p.a_ll.x, p.a_ll.y, p.line.azimuth1_deg, f * p.length_m);
+            m.x += 360.0 * std::round((a.x - m.x) / 360.0);  // same longitude branch as --from
+        } else {
+            m = {a.x + f * (b.x - a.x), a.y + f * (b.y - a.y)};
+        }
+        p.map[i] = m;
+        p.input.samples[i] = {g.colOf(m.x), g.rowOf(m.y), f * p.length_m};
+    }
+    // Radius of curvature at the middle of the path, along its azimuth there.
+    const MapPoint mid = geo.direct(p.a_ll.x, p.a_ll.y, p.line.azimuth1_deg, 0.5 * p.length_m);
+    p.input.latitude_deg = mid.y;
+    p.input.azimuth_deg = geo.inverse(mid.x, mid.y, p.b_ll.x, p.b_ll.y).azimuth1_deg;
+    return p;
+}
+
+std::string profileCsv(const PathProfileResult& r, const PlacedPath& path, bool geographic) {
+    const char* xy = geographic ? "%.9f" : "%.3f";
+    std::string out =
+        "distance_m,x,y,terrain_m,earth_bulge_m,sightline_m,clearance_m,fresnel_radius_m,"
+        "fresnel_fraction\n";
+    for (std::size_t i = 0; i < r.points.size(); ++i) {
+        const ProfilePoint& p = r.points[i];
+        out += fmt("%.3f", p.distance_m) + "," + fmt(xy, path.map[i].x) + "," +
+               fmt(xy, path.map[i].y) + "," + fmt("%.3f", p.terrain_m) + "," +
+               fmt("%.4f", p.earth_bulge_m) + "," + fmt("%.3f", p.sightline_m) + "," +
+               fmt("%.3f", p.clearance_m) + "," + fmt("%.3f", p.fresnel_radius_m) + "," +
+               fmt("%.4f", p.fresnel_fraction) + "\n";
+    }
+    return out;
+}
+
+/// The profile drawn on the curved Earth: the datum surface is the arc b(d) above the chord
+/// between its two ends, terrain and sightline are raised by b(d).
+std::string profileSvg(const PathProfileResult& r, bool fresnel, double frequency_mhz) {
+    const auto& pts = r.points;
+    std::vector<double> xs, base, terrain, sight, f_hi, f_lo, f_60;
+    double y_min = 0, y_max = 0;
+    bool first = true;
+    auto extend = [&](double y) {
+        if (!std::isfinite(y))
+            return;
+        if (first) {
+            y_min = y_max = y;
+            first = false;
+        }
+        y_min = std::fmin(y_min, y);
+        y_max = std::fmax(y_max, y);
+    };
+    for (const ProfilePoint& p : pts) {
+        xs.push_back(p.distance_m / 1000.0);
+        base.push_back(p.earth_bulge_m);
+        terrain.push_back(p.terrain_m + p.earth_bulge_m);
+        sight.push_back(p.sightline_m + p.earth_bulge_m);
+        extend(p.earth_bulge_m);
+        extend(terrain.back());
+        extend(sight.back());
+        if (fresnel) {
+            f_hi.push_back(sight.back() + p.fresnel_radius_m);
+            f_lo.push_back(sight.back() - p.fresnel_radius_m);
+            f_60.push_back(sight.back() - 0.6 * p.fresnel_radius_m);
+            extend(f_hi.back());
+            extend(f_lo.back());
+        }
+    }
+    extend(0.0);
+    // 960 × 520 px with 430 px of plot height: the top 110 px are kept free for the legend.
+    const double span = std::fmax(y_max - y_min, 1.0);
+    const double pad = 0.05 * span;
+    const double headroom = (span + pad) * 110.0 / 320.0;
+    const double x1 = r.path_length_m / 1000.0;
+    SvgPlot plot(960, 520, 0.0, x1, y_min - pad, y_max + headroom);
+    char title[200];
+    if (r.line_of_sight) {
+        std::snprintf(title, sizeof title, "Path profile over %.2f km: line of sight clear",
+                      r.path_length_m / 1000.0);
+    } else {
+        std::snprintf(title, sizeof title,
+                      "Path profile over %.2f km: line of sight blocked at %.2f km",
+                      r.path_length_m / 1000.0, r.blocked_at_m / 1000.0);
+    }
+    plot.title(title);
+    plot.axes("distance from the start (--from), km",
+              "height above the datum, m (Earth bulge added)");
+
+    // The Earth below the datum arc, lightly shaded, then terrain in runs of data.
+    const double floor_y = y_min - pad;
+    std::vector<double> floor_line(xs.size(), floor_y);
+    plot.band(xs, base, floor_line, {"none", "#dfe7ee", 0, "", 1.0});
+    SvgStyle ground{"#6b5a2e", "#cdbb8b", 1.0, "", 1.0};
+    for (std::size_t i = 0; i < xs.size();) {
+        if (std::isnan(terrain[i])) {
+            ++i;
+            continue;
+        }
+        std::size_t j = i;
+        while (j < xs.size() && !std::isnan(terrain[j]))
+            ++j;
+        std::vector<double> rx(xs.begin() + i, xs.begin() + j);
+        std::vector<double> ry(terrain.begin() + i, terrain.begin() + j);
+        std::vector<double> rb(base.begin() + i, base.begin() + j);
+        plot.band(rx, ry, rb, ground);
+        i = j;
+    }
+    plot.polyline(xs, base, {"#3f6e9a", "none", 1.0, "", 1.0});
+    if (fresnel) {
+        plot.band(xs, f_hi, f_lo, {"none", "#7fb9c9", 0, "", 0.28});
+        plot.polyline(xs, f_hi, {"#3d8ea3", "none", 0.8, "", 1.0});
+        plot.polyline(xs, f_lo, {"#3d8ea3", "none", 0.8, "", 1.0});
+        plot.polyline(xs, f_60, {"#3d8ea3", "none", 1.0, "5 3", 1.0});
+    }
+    // Masts at both ends.
+    plot.polyline({0.0, 0.0}, {terrain.front(), sight.front()}, {"#333333", "none", 2.5, "", 1.0});
+    plot.polyline({x1, x1}, {terrain.back(), sight.back()}, {"#333333", "none", 2.5, "", 1.0});
+    plot.polyline(xs, sight, {"#b0432b", "none", 1.8, "", 1.0});
+
+    plot.legend("terrain", {"#6b5a2e", "#cdbb8b", 6, "", 1.0});
+    plot.legend("datum surface (curved)", {"#3f6e9a", "none", 1.5, "", 1.0});
+    plot.legend("sightline", {"#b0432b", "none", 1.8, "", 1.0});
+    if (fresnel) {
+        char label[64];
+        std::snprintf(label, sizeof label, "first Fresnel zone, %.0f MHz", frequency_mhz);
+        plot.legend(label, {"#3d8ea3", "none", 1.0, "", 1.0});
+        plot.legend("60 % of the first zone", {"#3d8ea3", "none", 1.0, "5 3", 1.0});
+    }
+
+    // The worst point, and the first block.
+    auto index_of = [&](double d) {
+        std::size_t best = 0;
+        for (std::size_t i = 0; i < pts.size(); ++i)
+            if (std::fabs(pts[i].distance_m - d) < std::fabs(pts[best].distance_m - d))
+                best = i;
+        return best;
+    };
+    // Labels beside their markers, on the side with room (the plot clips at its frame).
+    auto mark = [&](std::size_t i, double y, const std::string& text, const char* colour,
+                    double dy_px) {
+        plot.marker(xs[i], y, "", colour);
+        const bool right_half = xs[i] > 0.55 * x1;
+        plot.text(xs[i], y, text, colour, right_half ? "end" : "start", right_half ? -8 : 8, dy_px);
+    };
+    char label[128];
+    if (fresnel && std::isfinite(r.min_fresnel_at_m)) {
+        std::size_t i = index_of(r.min_fresnel_at_m);
+        std::snprintf(label, sizeof label, "worst: clearance %.2f of F1 (%.1f m)",
+                      r.min_fresnel_fraction, pts[i].clearance_m);
+        mark(i, terrain[i], label, "#7a1f5c", 28);
+    } else if (std::isfinite(r.min_clearance_at_m)) {
+        std::size_t i = index_of(r.min_clearance_at_m);
+        std::snprintf(label, sizeof label, "least clearance %.1f m", r.min_clearance_m);
+        mark(i, terrain[i], label, "#7a1f5c", 28);
+    }
+    if (!r.line_of_sight) {
+        std::size_t i = index_of(r.blocked_at_m);
+        mark(i, sight[i], "first block", "#b0432b", -8);
+    }
+    return plot.render();
+}
+
+void runLink(const LinkState& s) {
+    const CommonOptions& o = s.options;
+    const double from_h = parseHeightOption(s.from_height, "--from-height");
+    const double to_h = parseHeightOption(s.to_height, "--to-height");
+    double frequency_mhz = std::numeric_limits<double>::quiet_NaN();
+    if (!trim(s.frequency_mhz).empty()) {
+        const std::string t = trim(s.frequency_mhz);
+        char* end = nullptr;
+        frequency_mhz = std::strtod(t.c_str(), &end);
+        if (*end != '\0' || !(frequency_mhz > 0) || !std::isfinite(frequency_mhz)) {
+            throw UsageError("--frequency-mhz: '" + t + "' is not a positive frequency in MHz");
+        }
+    }
+    const MapPoint from_in = parsePoint(s.from, "--from");
+    const MapPoint to_in = parsePoint(s.to, "--to");
+    RunContext ctx = prepareRun("link", o, {s.csv, s.plot});
+    ctx.run.observer_height_m = from_h;
+    ctx.run.target_height_m = to_h;
+    ctx.run.method = "exact";
+    ctx.run.reach_m = std::numeric_limits<double>::infinity();
+    // Outside the DEM or on a no-data cell: exit 3, with the point as typed.
+    placeObserver(ctx, "--from", from_in.x, from_in.y, from_h, "from");
+    placeObserver(ctx, "--to", to_in.x, to_in.y, to_h, "to");
+    const MapPoint a = toDemCrs(ctx, from_in), b = toDemCrs(ctx, to_in);
+
+    PlacedPath path = placePath(ctx, a, b);
+    path.input.from_height_m = from_h;
+    path.input.to_height_m = to_h;
+    path.input.frequency_mhz = frequency_mhz;
+    const PathProfileResult r = computePathProfile(ctx.dem.z, ctx.earth, path.input);
+    const bool fresnel = frequency_mhz > 0;
+    const bool geographic = ctx.dem.geometry.geographic();
+
+    // Azimuths: true from the geodesic; grid from the map coordinates (= true on a lat/lon grid).
+    const double az_true_from = path.line.azimuth1_deg;
+    const double az_true_to = wrap360(path.line.azimuth2_deg + 180.0);
+    double az_grid_from = az_true_from, az_grid_to = az_true_to;
+    if (!geographic) {
+        az_grid_from = wrap360(std::atan2(b.x - a.x, b.y - a.y) * kRadToDeg);
+        az_grid_to = wrap360(az_grid_from + 180.0);
+    }
+
+    if (!s.csv.empty())
+        writeTextFile(s.csv, profileCsv(r, path, geographic));
+    if (!s.plot.empty())
+        writeTextFile(s.plot, profileSvg(r, fresnel, frequency_mhz));
+
+    nlohmann::json j = summaryBase(ctx.run);
+    j["parameters"]["frequency_mhz"] = finiteOrNull(frequency_mhz);
+    j["parameters"]["from_height_m"] = from_h;
+    j["parameters"]["to_height_m"] = to_h;
+    j["path_length_m"] = r.path_length_m;
+    j["line_of_sight"] = r.line_of_sight ? "clear" : "blocked";
+    j["blocked_at_m"] = finiteOrNull(r.blocked_at_m);
+    j["blocked_samples"] = r.blocked_samples;
+    j["min_clearance_m"] = finiteOrNull(r.min_clearance_m);
+    j["min_clearance_at_m"] = finiteOrNull(r.min_clearance_at_m);
+    j["min_fresnel_fraction"] = fresnel ? finiteOrNull(r.min_fresnel_fraction) : nullptr;
+    j["min_fresnel_at_m"] = fresnel ? finiteOrNull(r.min_fresnel_at_m) : nullptr;
+    j["fresnel_60_clear"] = fresnel ? nlohmann::json(r.fresnel_60_clear) : nullptr;
+    j["effective_radius_m"] = finiteOrNull(r.effective_radius_m);
+    j["samples"] = r.points.size();
+    j["sample_spacing_m"] = r.path_length_m / static_cast<double>(r.points.size() - 1);
+    auto end = [&](const MapPoint& p, const MapPoint& ll, double ground, double antenna, double h,
+                   double az_grid, double az_true, double elev) {
+        return nlohmann::json{{"x", p.x},
+                              {"y", p.y},
+                              {"lon", ll.x},
+                              {"lat", ll.y},
+                              {"ground_m", ground},
+                              {"height_m", h},
+                              {"antenna_m", antenna},
+                              {"azimuth_grid_deg", az_grid},
+                              {"azimuth_true_deg", az_true},
+                              {"elevation_angle_deg", elev}};
+    };
+    j["from"] = end(a, path.a_ll, r.from_ground_m, r.from_antenna_m, from_h, az_grid_from,
+                    az_true_from, r.from_elevation_deg);
+    j["to"] = end(b, path.b_ll, r.to_ground_m, r.to_antenna_m, to_h, az_grid_to, az_true_to,
+                  r.to_elevation_deg);
+
+    TextTable t("Link on " + ctx.dem.path);
+    t.add("path length", formatDistance(r.path_length_m) + " (geodesic on the DEM's ellipsoid)");
+    if (r.line_of_sight) {
+        t.add("line of sight", "clear");
+    } else {
+        t.add("line of sight", "blocked, first at " + formatDistance(r.blocked_at_m) + " (" +
+                                   std::to_string(r.blocked_samples) +
+                                   " samples below the sightline)");
+    }
+    if (std::isfinite(r.min_clearance_m)) {
+        t.add("least clearance",
+              formatNumber(r.min_clearance_m, 2) + " m at " + formatDistance(r.min_clearance_at_m));
+    }
+    if (fresnel) {
+        if (std::isfinite(r.min_fresnel_fraction)) {
+            t.add("worst Fresnel clearance", formatNumber(r.min_fresnel_fraction, 3) +
+                                                 " of F1 at " + formatDistance(r.min_fresnel_at_m));
+        }
+        t.add("60 % of F1 clear", r.fresnel_60_clear ? "yes" : "no");
+    }
+    auto endRow = [&](const char* name, double ground, double antenna, double az_grid,
+                      double az_true, double elev) {
+        t.add(std::string(name) + " ground / antenna",
+              formatNumber(ground, 2) + " m / " + formatNumber(antenna, 2) + " m");
+        t.add(std::string(name) + " azimuth",
+              formatNumber(az_grid, 3) + "° grid, " + formatNumber(az_true, 3) + "° true");
+        t.add(std::string(name) + " elevation angle", fmt("%+.4f", elev) + "°");
+    };
+    endRow("from", r.from_ground_m, r.from_antenna_m, az_grid_from, az_true_from,
+           r.from_elevation_deg);
+    endRow("to", r.to_ground_m, r.to_antenna_m, az_grid_to, az_true_to, r.to_elevation_deg);
+    t.add("effective Earth radius", std::isfinite(r.effective_radius_m)
+                                        ? formatNumber(r.effective_radius_m, 0) + " m (k " +
+                                              fmt("%g", ctx.earth.refraction()) + ")"
+                                        : "flat Earth");
+    t.add("samples", std::to_string(r.points.size()) + ", every " +
+                         formatNumber(j["sample_spacing_m"].get<double>(), 2) + " m");
+    finishSummary(ctx, j, t.render());
+}
+
+}  // namespace
+
 Command addLinkCommand(CLI::App& root) {
-    auto state = std::make_shared<CommonOptions>();
-    CLI::App* app = root.add_subcommand("link", "(not available yet)");
-    addCommonOptions(app, *state);
-    return {app, [] { throw InternalError("'link' is not available in this build yet"); }};
+    auto state = std::make_shared<LinkState>();
+    CLI::App* app = root.add_subcommand(
+        "link",
+        "path profile between two points: sightline clearance over the curved, refracting Earth, "
+        "first Fresnel zone, azimuths and elevation angles at both ends");
+    addCommonOptions(app, state->options, kGeometryOptions);
+    app->remove_option(app->get_option("--reach"));
+    app->add_option("--from", state->from, "start of the path X,Y (in --crs; the exact point)")
+        ->required()
+        ->group("Path");
+    app->add_option("--to", state->to, "end of the path X,Y (in --crs; the exact point)")
+        ->required()
+        ->group("Path");
+    app->add_option("--from-height", state->from_height,
+                    "antenna or eye above the ground at --from, metres")
+        ->capture_default_str()
+        ->group("Path");
+    app->add_option("--to-height", state->to_height,
+                    "antenna or eye above the ground at --to, metres")
+        ->capture_default_str()
+        ->group("Path");
+    app->add_option("--frequency-mhz", state->frequency_mhz,
+                    "radio frequency, MHz (> 0): adds the first Fresnel zone and its clearance")
+        ->group("Path");
+    app->add_option("--csv", state->csv,
+                    "write the profile as CSV (distance_m,x,y,terrain_m,earth_bulge_m,"
+                    "sightline_m,clearance_m,fresnel_radius_m,fresnel_fraction)")
+        ->group("Output");
+    app->add_option("--plot", state->plot, "write the profile as an SVG plot")->group("Output");
+    app->footer(
+        "\nThe terrain is sampled at most half a cell apart along the geodesic (geographic DEMs) "
+        "or the straight map line (projected DEMs), with bilinear heights; curvature is the exact "
+        "sphere of radius R/(1-k) along the path. Clearance is the sightline's height above the "
+        "terrain; F1 = sqrt(lambda d1 d2 / d)." +
+        cautionText());
+    return {app, [state] { runLink(*state); }};
 }
 
 }  // namespace lookfar::cli

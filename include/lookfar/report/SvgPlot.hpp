@@ -31,6 +31,10 @@ class SvgPlot {
     /// Horizontal reference line across the plot with a label at its right end.
     void hline(double y, const std::string& label, const SvgStyle& style);
     void marker(double x, double y, const std::string& label, const std::string& colour);
+    /// A text label at data point (x, y), shifted by (dx_px, dy_px) pixels; `anchor` is the SVG
+    /// text-anchor: "start", "middle" or "end". Drawn with a white halo to stay readable.
+    void text(double x, double y, const std::string& label, const std::string& colour,
+              const std::string& anchor = "start", double dx_px = 0, double dy_px = 0);
     /// A legend entry (drawn top-right in order of calls).
     void legend(const std::string& label, const SvgStyle& style);
     std::string render() const;
