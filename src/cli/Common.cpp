@@ -285,6 +285,49 @@ Observer placeObserver(const RunContext& ctx, const std::string& what, double x,
     return o;
 }
 
+std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<std::string>& what,
+                                     const std::vector<MapPoint>& points,
+                                     const std::vector<double>& heights_m,
+                                     const std::vector<std::string>& names,
+                                     std::vector<MapPoint>* points_dem) {
+    std::unique_ptr<CoordinateTransform> to_dem;
+    if (!ctx.options.crs.empty())
+        to_dem = std::make_unique<CoordinateTransform>(ctx.options.crs, ctx.dem.crs.wkt);
+    const LonLatOf lonlat(ctx.dem.crs.wkt);
+    const auto& g = ctx.dem.geometry;
+    std::vector<Observer> out;
+    if (points_dem)
+        points_dem->clear();
+    for (std::size_t i = 0; i < points.size(); ++i) {
+        const double x = points[i].x, y = points[i].y;
+        const MapPoint p = to_dem ? to_dem->apply(points[i]) : points[i];
+        if (!g.containsMap(p.x, p.y)) {
+            char buf[256];
+            std::snprintf(buf, sizeof buf,
+                          " %.10g,%.10g is outside the DEM %s (x %.10g to %.10g, y %.10g to %.10g)",
+                          x, y, ctx.dem.path.c_str(), g.mapX(-0.5), g.mapX(g.width() - 0.5),
+                          g.mapY(g.height() - 0.5), g.mapY(-0.5));
+            throw InputError(what[i] + buf);
+        }
+        Observer o;
+        o.name = names[i];
+        o.col = g.cellColOf(p.x);
+        o.row = g.cellRowOf(p.y);
+        o.height_m = heights_m[i];
+        if (std::isnan(ctx.dem.z(o.col, o.row))) {
+            char buf[256];
+            std::snprintf(buf, sizeof buf, " %.10g,%.10g lies on a no-data cell of %s", x, y,
+                          ctx.dem.path.c_str());
+            throw InputError(what[i] + buf);
+        }
+        o.latitude_deg = lonlat.apply({g.mapX(o.col), g.mapY(o.row)}).y;
+        out.push_back(o);
+        if (points_dem)
+            points_dem->push_back(p);
+    }
+    return out;
+}
+
 RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
                       double nodata) {
     RasterSpec spec;

@@ -111,6 +111,14 @@ double parseReachOption(const std::string& text);
 /// Throws InputError when outside the DEM or on no-data (naming the point and the DEM).
 Observer placeObserver(const RunContext& ctx, const std::string& what, double x, double y,
                        double height_m, const std::string& name);
+/// placeObserver for many points at once, with one PROJ transform for all of them (creating a
+/// transform costs milliseconds). `what[i]` names point i in messages. When `points_dem` is given
+/// it receives the points converted into the DEM's CRS.
+std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<std::string>& what,
+                                     const std::vector<MapPoint>& points,
+                                     const std::vector<double>& heights_m,
+                                     const std::vector<std::string>& names,
+                                     std::vector<MapPoint>* points_dem = nullptr);
 /// Converts a point from --crs into the DEM's CRS.
 MapPoint toDemCrs(const RunContext& ctx, const MapPoint& p);
 /// Latitude (degrees) of a point given in the DEM's CRS.

@@ -1,14 +1,283 @@
-// lookfar intervis: placeholder registered until its engine lands (see the issue tracker).
+// lookfar intervis: which stations of a network see each other. The matrix comes from
+// lookfar/link/Intervisibility; this file places the stations, adds the PROJ distances and
+// azimuths and writes the matrix CSV, the GeoJSON lines and the summary.
+#include <cmath>
+#include <cstdio>
+#include <map>
+
 #include "Commands.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Units.hpp"
+#include "lookfar/io/Crs.hpp"
+#include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/link/Intervisibility.hpp"
+#include "lookfar/report/TextTable.hpp"
 
 namespace lookfar::cli {
 
+namespace {
+
+struct IntervisState {
+    CommonOptions options;
+    std::string stations;
+    std::string matrix;
+    std::string lines;
+};
+
+std::string fmt(const char* format, double v) {
+    if (!std::isfinite(v))
+        return "";
+    char buf[64];
+    std::snprintf(buf, sizeof buf, format, v);
+    return buf;
+}
+
+double wrap360(double az) {
+    az = std::fmod(az, 360.0);
+    if (az < 0)
+        az += 360.0;
+    return az >= 360.0 ? 0.0 : az;
+}
+
+double round4(double v) {
+    return std::round(v * 1e4) / 1e4;
+}
+
+double round7(double v) {
+    return std::round(v * 1e7) / 1e7;
+}
+
+/// Distance and azimuths of a pair, from the points as given (converted to the DEM's CRS).
+struct PairGeometry {
+    double distance_m = 0;        ///< PROJ geodesic on the DEM's ellipsoid
+    double azimuth_deg = 0;       ///< grid azimuth at the first station towards the second
+    double back_azimuth_deg = 0;  ///< grid azimuth at the second station towards the first
+};
+
+void runIntervis(const IntervisState& s) {
+    const CommonOptions& o = s.options;
+    RunContext ctx = prepareRun("intervis", o, {s.matrix, s.lines}, {s.stations});
+    ctx.run.method = "reference";
+    ctx.run.extra["STATIONS"] = s.stations;
+    const std::vector<Site> sites = readSitesCsv(s.stations);
+    const GridGeometry& g = ctx.dem.geometry;
+
+    // Stations: names unique, inside the DEM and on data (exit 3 naming the file and line).
+    std::map<std::string, int> line_of_name;
+    std::vector<std::string> what, names;
+    std::vector<MapPoint> given;
+    std::vector<double> heights;
+    for (const Site& site : sites) {
+        const std::string where = s.stations + ", line " + std::to_string(site.line);
+        auto [it, fresh] = line_of_name.emplace(site.name, site.line);
+        if (!fresh) {
+            throw InputError(where + ": the station name '" + site.name +
+                             "' is already used on line " + std::to_string(it->second) +
+                             "; the matrix needs unique names");
+        }
+        what.push_back(where + ": station '" + site.name + "' at");
+        names.push_back(site.name);
+        given.push_back({site.x, site.y});
+        heights.push_back(site.height_m.value_or(ctx.observer_height_m));
+    }
+    std::vector<MapPoint> points;
+    const std::vector<Observer> stations =
+        placeObservers(ctx, what, given, heights, names, &points);
+    if (stations.size() < 2)
+        throw InputError(s.stations + ": intervisibility needs at least two stations");
+    const int n = static_cast<int>(stations.size());
+
+    IntervisOptions opt;
+    opt.reach_m = ctx.reach_m;
+    const IntervisResult res =
+        computeIntervisibility(ctx.dem.z, g, ctx.earth, stations, opt, *ctx.progress);
+
+    // Distances and azimuths of every unordered pair (PROJ geodesic; grid azimuths from the map
+    // coordinates, which on a lat/lon grid are the true ones).
+    const LonLatOf ll(ctx.dem.crs.wkt);
+    const Geodesic geo(ctx.dem.crs.ellipsoid);
+    std::vector<MapPoint> lonlat(n);
+    for (int i = 0; i < n; ++i)
+        lonlat[i] = ll.apply(points[i]);
+    std::vector<PairGeometry> pg(static_cast<std::size_t>(n) * n);
+    for (int i = 0; i < n; ++i) {
+        for (int j = i + 1; j < n; ++j) {
+            const GeodesicLine line =
+                geo.inverse(lonlat[i].x, lonlat[i].y, lonlat[j].x, lonlat[j].y);
+            PairGeometry ij, ji;
+            ij.distance_m = ji.distance_m = line.distance_m;
+            if (g.geographic()) {
+                ij.azimuth_deg = line.azimuth1_deg;
+                ij.back_azimuth_deg = wrap360(line.azimuth2_deg + 180.0);
+            } else {
+                ij.azimuth_deg = wrap360(
+                    std::atan2(points[j].x - points[i].x, points[j].y - points[i].y) * kRadToDeg);
+                ij.back_azimuth_deg = wrap360(ij.azimuth_deg + 180.0);
+            }
+            if (line.distance_m == 0) {
+                ij.azimuth_deg = ij.back_azimuth_deg = std::numeric_limits<double>::quiet_NaN();
+            }
+            ji.azimuth_deg = ij.back_azimuth_deg;
+            ji.back_azimuth_deg = ij.azimuth_deg;
+            pg[static_cast<std::size_t>(i) * n + j] = ij;
+            pg[static_cast<std::size_t>(j) * n + i] = ji;
+        }
+    }
+
+    // The matrix: one row per ordered pair.
+    std::string csv = "from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg\n";
+    for (int i = 0; i < n; ++i) {
+        for (int j = 0; j < n; ++j) {
+            if (i == j)
+                continue;
+            const PairVerdict& v = res.at(i, j);
+            const PairGeometry& p = pg[static_cast<std::size_t>(i) * n + j];
+            csv += csvField(stations[i].name) + "," + csvField(stations[j].name) + "," +
+                   (v.visible ? "yes" : "no") + "," + fmt("%.3f", v.margin_m) + "," +
+                   fmt("%.3f", p.distance_m) + "," + fmt("%.4f", p.azimuth_deg) + "," +
+                   fmt("%.4f", p.back_azimuth_deg) + "\n";
+        }
+    }
+
+    // Pairs and stations.
+    std::int64_t pairs = 0, judged = 0, both = 0, one_way = 0;
+    std::vector<int> sees(n, 0), seen_by(n, 0);
+    std::vector<std::pair<int, int>> visible_pairs;
+    for (int i = 0; i < n; ++i) {
+        for (int j = 0; j < n; ++j) {
+            if (i != j && res.at(i, j).visible) {
+                ++sees[i];
+                ++seen_by[j];
+            }
+        }
+        for (int j = i + 1; j < n; ++j) {
+            ++pairs;
+            const PairVerdict &a = res.at(i, j), &b = res.at(j, i);
+            if (a.judged)
+                ++judged;
+            if (a.visible && b.visible) {
+                ++both;
+                visible_pairs.emplace_back(i, j);
+            } else if (a.visible != b.visible) {
+                ++one_way;
+            }
+        }
+    }
+    std::vector<std::string> seen_by_none;
+    for (int j = 0; j < n; ++j) {
+        if (seen_by[j] == 0)
+            seen_by_none.push_back(stations[j].name);
+    }
+
+    // GeoJSON (RFC 7946): WGS 84 lon/lat, no "crs" member.
+    if (!s.lines.empty()) {
+        CoordinateTransform to_wgs84(ctx.dem.crs.wkt, "EPSG:4326");
+        std::vector<MapPoint> wgs(n);
+        for (int i = 0; i < n; ++i)
+            wgs[i] = to_wgs84.apply(points[i]);
+        nlohmann::json features = nlohmann::json::array();
+        auto milli = [](double v) { return std::round(v * 1000.0) / 1000.0; };
+        for (const auto& [i, j] : visible_pairs) {
+            const PairGeometry& p = pg[static_cast<std::size_t>(i) * n + j];
+            nlohmann::json line = {
+                {"type", "LineString"},
+                {"coordinates",
+                 {{round7(wgs[i].x), round7(wgs[i].y)}, {round7(wgs[j].x), round7(wgs[j].y)}}}};
+            nlohmann::json props = {{"from", stations[i].name},
+                                    {"to", stations[j].name},
+                                    {"distance_m", milli(p.distance_m)},
+                                    {"margin_at_to_m", milli(res.at(i, j).margin_m)},
+                                    {"margin_at_from_m", milli(res.at(j, i).margin_m)},
+                                    {"azimuth_deg", finiteOrNull(round4(p.azimuth_deg))},
+                                    {"back_azimuth_deg", finiteOrNull(round4(p.back_azimuth_deg))}};
+            features.push_back({{"type", "Feature"}, {"geometry", line}, {"properties", props}});
+        }
+        // One feature per line: readable, and diff-friendly.
+        std::string text = "{\"type\": \"FeatureCollection\", \"features\": [\n";
+        for (std::size_t k = 0; k < features.size(); ++k)
+            text += features[k].dump() + (k + 1 < features.size() ? ",\n" : "\n");
+        writeTextFile(s.lines, text + "]}\n");
+    }
+    writeTextFile(s.matrix, csv);
+
+    nlohmann::json j = summaryBase(ctx.run);
+    j["parameters"]["target_height_m"] = nullptr;  // each target is the other station's height
+    j["stations_file"] = s.stations;
+    j["station_count"] = n;
+    j["pairs"] = pairs;
+    j["pairs_within_reach"] = judged;
+    j["pairs_visible"] = both;
+    j["pairs_visible_one_way"] = one_way;
+    j["stations_seen_by_none"] = seen_by_none;
+    nlohmann::json list = nlohmann::json::array();
+    for (int i = 0; i < n; ++i) {
+        const float ground = ctx.dem.z(stations[i].col, stations[i].row);
+        list.push_back({{"name", stations[i].name},
+                        {"x", points[i].x},
+                        {"y", points[i].y},
+                        {"ground_m", ground},
+                        {"height_m", stations[i].height_m},
+                        {"eye_m", ground + stations[i].height_m},
+                        {"sees", sees[i]},
+                        {"seen_by", seen_by[i]}});
+    }
+    j["stations"] = list;
+
+    TextTable t("Intervisibility of " + std::to_string(n) + " stations on " + ctx.dem.path);
+    t.setHeader({"station", "ground m", "height m", "sees", "seen by"});
+    for (int i = 0; i < n; ++i) {
+        t.addRow({stations[i].name, formatNumber(list[i]["ground_m"].get<double>(), 1),
+                  formatNumber(stations[i].height_m, 1), std::to_string(sees[i]),
+                  std::to_string(seen_by[i])});
+    }
+    std::string table = t.render();
+    TextTable sum("");
+    sum.add("pairs", std::to_string(pairs) + (std::isfinite(ctx.reach_m)
+                                                  ? " (" + std::to_string(judged) + " within reach)"
+                                                  : ""));
+    sum.add("pairs visible",
+            std::to_string(both) + (one_way ? " (and " + std::to_string(one_way) +
+                                                  " seen one way only, margin near zero)"
+                                            : ""));
+    std::string none;
+    for (const auto& name : seen_by_none)
+        none += (none.empty() ? "" : ", ") + name;
+    sum.add("seen by no other station", none.empty() ? "none" : none);
+    finishSummary(ctx, j, table + sum.render());
+}
+
+}  // namespace
+
 Command addIntervisCommand(CLI::App& root) {
-    auto state = std::make_shared<CommonOptions>();
-    CLI::App* app = root.add_subcommand("intervis", "(not available yet)");
-    addCommonOptions(app, *state);
-    return {app, [] { throw InternalError("'intervis' is not available in this build yet"); }};
+    auto state = std::make_shared<IntervisState>();
+    CLI::App* app = root.add_subcommand(
+        "intervis",
+        "intervisibility of a network of stations: for every pair, visible or not, margin, "
+        "distance and azimuths both ways");
+    addCommonOptions(app, state->options, kGeometryOptions | kHeightOptions);
+    app->remove_option(app->get_option("--target-height"));
+    app->get_option("--observer-height")
+        ->description("height of a station above the ground when its CSV row gives none, metres");
+    app->add_option("--stations", state->stations,
+                    "CSV of stations: name,x,y and optional height (metres above ground)")
+        ->required()
+        ->group("Stations");
+    app->add_option("-o,--output", state->matrix,
+                    "matrix CSV, one row per ordered pair "
+                    "(from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg)")
+        ->required()
+        ->group("Output");
+    app->add_option("--lines", state->lines,
+                    "GeoJSON (RFC 7946, WGS 84 lon/lat) with a line for every pair that sees "
+                    "each other")
+        ->group("Output");
+    app->footer(
+        "\nEach station stands at the centre of its DEM cell; the pair i,j is judged by the "
+        "sightline rule from i's eye (ground + height) to j's antenna (ground + j's height). "
+        "Pairs beyond --reach are not judged (visible 'no', margin empty). Distances are PROJ "
+        "geodesics between the given points; azimuths are grid azimuths (true on lat/lon DEMs)." +
+        cautionText());
+    return {app, [state] { runIntervis(*state); }};
 }
 
 }  // namespace lookfar::cli

@@ -1,0 +1,231 @@
+// `lookfar intervis` on the built binary: the matrix of DESIGN.md, distances against PROJ's
+// geodesic solver (REFERENCES.md row 11), GeoJSON in WGS 84 lon/lat as RFC 7946 asks (checked
+// with PROJ's own transform), the radio horizon over the flat sea (row 4), bad input.
+#include <gtest/gtest.h>
+#include <geodesic.h>
+#include <proj.h>
+
+#include <nlohmann/json.hpp>
+
+#include <cmath>
+#include <fstream>
+#include <map>
+#include <sstream>
+
+#include "../support/CliRunner.hpp"
+
+using namespace lookfar::testing;
+
+namespace {
+
+struct LonLat {
+    double lon, lat;
+};
+LonLat toLonLat(const char* crs, double x, double y) {
+    PJ_CONTEXT* ctx = proj_context_create();
+    PJ* op = proj_create_crs_to_crs(ctx, crs, "EPSG:4326", nullptr);
+    PJ* norm = proj_normalize_for_visualization(ctx, op);
+    PJ_COORD out = proj_trans(norm, PJ_FWD, proj_coord(x, y, 0, 0));
+    proj_destroy(norm);
+    proj_destroy(op);
+    proj_context_destroy(ctx);
+    return {out.xy.x, out.xy.y};
+}
+double geodesicM(LonLat a, LonLat b) {
+    geod_geodesic g;
+    geod_init(&g, 6378137.0, 1 / 298.257223563);
+    double s12, a1, a2;
+    geod_inverse(&g, a.lat, a.lon, b.lat, b.lon, &s12, &a1, &a2);
+    return s12;
+}
+
+/// Splits a CSV line with RFC 4180 quotes.
+std::vector<std::string> fields(const std::string& line) {
+    std::vector<std::string> out;
+    std::string f;
+    bool q = false;
+    for (std::size_t i = 0; i < line.size(); ++i) {
+        char c = line[i];
+        if (q) {
+            if (c == '"' && i + 1 < line.size() && line[i + 1] == '"') {
+                f += '"';
+                ++i;
+            } else if (c == '"') {
+                q = false;
+            } else {
+                f += c;
+            }
+        } else if (c == '"') {
+            q = true;
+        } else if (c == ',') {
+            out.push_back(f);
+            f.clear();
+        } else {
+            f += c;
+        }
+    }
+    out.push_back(f);
+    return out;
+}
+std::vector<std::vector<std::string>> readCsv(const std::string& path) {
+    std::vector<std::vector<std::string>> rows;
+    std::istringstream in(readFile(path));
+    std::string line;
+    while (std::getline(in, line))
+        rows.push_back(fields(line));
+    return rows;
+}
+
+// The demo stations (test_rasters/demo_sites.csv), EPSG:32630.
+const std::map<std::string, std::pair<double, double>> kDemo = {
+    {"Skerrow Head", {422937.5, 5598337.5}},   {"Saltinghow Point", {422837.5, 5594512.5}},
+    {"Merrowdun Hill", {425087.5, 5597212.5}}, {"Quarrel Knap", {426937.5, 5594387.5}},
+    {"Ashgrise Pike", {431512.5, 5592787.5}},  {"Brennock Fell, North Top", {431162.5, 5594962.5}},
+    {"Tollan Rigg", {429787.5, 5598562.5}}};
+
+}  // namespace
+
+TEST(IntervisCliTest, MatrixHasOneRowPerOrderedPairWithPROJDistances) {
+    ScratchDir dir;
+    CliResult r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                              testRaster("demo_sites.csv"), "-o", dir.file("m.csv"), "--summary",
+                              dir.file("s.json"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto rows = readCsv(dir.file("m.csv"));
+    ASSERT_EQ(rows.size(), 1u + 7 * 6);
+    EXPECT_EQ(firstLine(readFile(dir.file("m.csv"))),
+              "from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg");
+    std::map<std::pair<std::string, std::string>, std::vector<std::string>> by_pair;
+    int visible = 0;
+    for (std::size_t i = 1; i < rows.size(); ++i) {
+        const auto& f = rows[i];
+        ASSERT_EQ(f.size(), 7u);
+        ASSERT_TRUE(kDemo.count(f[0]) && kDemo.count(f[1])) << f[0] << " / " << f[1];
+        EXPECT_TRUE(f[2] == "yes" || f[2] == "no");
+        EXPECT_EQ(f[2] == "yes", std::stod(f[3]) >= 0);
+        visible += f[2] == "yes";
+        by_pair[{f[0], f[1]}] = f;
+        // Row 11: the distance is PROJ's geodesic between the stations as given.
+        const auto a = kDemo.at(f[0]), b = kDemo.at(f[1]);
+        const double s = geodesicM(toLonLat("EPSG:32630", a.first, a.second),
+                                   toLonLat("EPSG:32630", b.first, b.second));
+        EXPECT_NEAR(std::stod(f[4]), s, 1e-3);
+        // Grid azimuths of a projected DEM: the back azimuth is the reverse bearing.
+        const double az = std::atan2(b.first - a.first, b.second - a.second) * 180 / M_PI;
+        EXPECT_NEAR(std::stod(f[5]), az < 0 ? az + 360 : az, 1e-4);
+        EXPECT_NEAR(std::fmod(std::stod(f[6]) - std::stod(f[5]) + 360, 360), 180, 1e-3);
+    }
+    // Each pair appears both ways with the same distance and swapped azimuths.
+    for (const auto& [key, f] : by_pair) {
+        const auto& g = by_pair.at({key.second, key.first});
+        EXPECT_EQ(f[4], g[4]);
+        EXPECT_EQ(f[5], g[6]);
+    }
+    const auto j = nlohmann::json::parse(readFile(dir.file("s.json")));
+    EXPECT_EQ(j["station_count"], 7);
+    EXPECT_EQ(j["pairs"], 21);
+    EXPECT_EQ(j["pairs_visible"].get<int>() * 2 + j["pairs_visible_one_way"].get<int>(), visible);
+    EXPECT_TRUE(j["stations_seen_by_none"].is_array());
+}
+
+// RFC 7946: a FeatureCollection of LineStrings in WGS 84 lon/lat (no "crs" member), here one
+// per pair that sees each other; the ends are the stations, as PROJ transforms them.
+TEST(IntervisCliTest, GeoJsonLinesAreTheVisiblePairsInWgs84LonLat) {
+    ScratchDir dir;
+    CliResult r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                              testRaster("demo_sites.csv"), "-o", dir.file("m.csv"), "--lines",
+                              dir.file("l.geojson"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto summary = nlohmann::json::parse(r.out);
+    const auto g = nlohmann::json::parse(readFile(dir.file("l.geojson")));
+    EXPECT_EQ(g["type"], "FeatureCollection");
+    EXPECT_FALSE(g.contains("crs"));
+    ASSERT_EQ(g["features"].size(), summary["pairs_visible"].get<std::size_t>());
+    ASSERT_GT(g["features"].size(), 0u);
+    for (const auto& f : g["features"]) {
+        EXPECT_EQ(f["type"], "Feature");
+        EXPECT_EQ(f["geometry"]["type"], "LineString");
+        const auto& c = f["geometry"]["coordinates"];
+        ASSERT_EQ(c.size(), 2u);
+        const auto a = kDemo.at(f["properties"]["from"]), b = kDemo.at(f["properties"]["to"]);
+        const LonLat la = toLonLat("EPSG:32630", a.first, a.second);
+        const LonLat lb = toLonLat("EPSG:32630", b.first, b.second);
+        EXPECT_NEAR(c[0][0].get<double>(), la.lon, 1e-7);
+        EXPECT_NEAR(c[0][1].get<double>(), la.lat, 1e-7);
+        EXPECT_NEAR(c[1][0].get<double>(), lb.lon, 1e-7);
+        EXPECT_NEAR(c[1][1].get<double>(), lb.lat, 1e-7);
+        EXPECT_GE(f["properties"]["margin_at_to_m"].get<double>(), 0);
+        EXPECT_GE(f["properties"]["margin_at_from_m"].get<double>(), 0);
+    }
+}
+
+// Row 4: radio horizon with k = 0.25, d(km) = 4.12 √h(m) (ITU-R, from memory), on the committed
+// flat sea (50 m cells). Masts of 20 m and 30 m: 40.99 km. A sees B at 0.97 × that, not C at
+// 1.03 × (the margins allow for rounding 4.12 and for the stations standing on cell centres).
+TEST(IntervisCliTest, FlatSeaMastsSeeEachOtherUpToTheSumOfRadioHorizons) {
+    ScratchDir dir;
+    const double sum = 4120 * (std::sqrt(20.0) + std::sqrt(30.0));
+    const double x0 = 400500, y = 5624975;
+    std::ofstream(dir.file("st.csv"))
+        << "name,x,y,height\nA," << x0 << "," << y << ",20\nB," << x0 + 0.97 * sum << "," << y
+        << ",30\nC," << x0 + 1.03 * sum << "," << y << ",30\n";
+    CliResult r = runLookfar({"intervis", testRaster("flat_sea.tif"), "--stations",
+                              dir.file("st.csv"), "-o", dir.file("m.csv"), "--refraction", "0.25",
+                              "--earth-model", "sphere", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    std::map<std::string, std::string> seen;
+    for (const auto& f : readCsv(dir.file("m.csv")))
+        seen[f[0] + ">" + f[1]] = f[2];
+    EXPECT_EQ(seen["A>B"], "yes");
+    EXPECT_EQ(seen["B>A"], "yes");
+    EXPECT_EQ(seen["A>C"], "no");
+    EXPECT_EQ(seen["C>A"], "no");
+}
+
+TEST(IntervisCliTest, ReachLeavesFarPairsUnjudged) {
+    ScratchDir dir;
+    CliResult r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                              testRaster("demo_sites.csv"), "-o", dir.file("m.csv"), "--reach",
+                              "5000", "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    int far = 0;
+    for (const auto& f : readCsv(dir.file("m.csv"))) {
+        if (f[0] == "from")
+            continue;
+        if (std::stod(f[4]) > 5010) {  // beyond reach (cell-centre distances differ by < 1 m)
+            EXPECT_EQ(f[2], "no");
+            EXPECT_EQ(f[3], "");
+            ++far;
+        } else if (std::stod(f[4]) < 4990) {
+            EXPECT_NE(f[3], "");
+        }
+    }
+    EXPECT_GT(far, 10);
+    const auto j = nlohmann::json::parse(r.out);
+    EXPECT_LT(j["pairs_within_reach"].get<int>(), 21);
+}
+
+TEST(IntervisCliTest, StationOutsideTheDemNamesTheFileAndLine) {
+    ScratchDir dir;
+    std::ofstream(dir.file("st.csv")) << "name,x,y\nA,422937.5,5598337.5\nB,999999,5594512.5\n";
+    CliResult r =
+        runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations", dir.file("st.csv"),
+                    "-o", dir.file("m.csv"), "--lines", dir.file("l.geojson"), "--quiet"});
+    EXPECT_EQ(r.exit_code, 3);
+    EXPECT_NE(firstLine(r.err).find(dir.file("st.csv") + ", line 3"), std::string::npos) << r.err;
+    EXPECT_NE(firstLine(r.err).find("outside the DEM"), std::string::npos) << r.err;
+    EXPECT_FALSE(fileExists(dir.file("m.csv")));
+    EXPECT_FALSE(fileExists(dir.file("l.geojson")));
+}
+
+TEST(IntervisCliTest, DuplicateStationNamesAreBadInput) {
+    ScratchDir dir;
+    std::ofstream(dir.file("st.csv"))
+        << "name,x,y\nA,422937.5,5598337.5\nB,425087.5,5597212.5\nA,426937.5,5594387.5\n";
+    CliResult r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                              dir.file("st.csv"), "-o", dir.file("m.csv"), "--quiet"});
+    EXPECT_EQ(r.exit_code, 3);
+    EXPECT_NE(firstLine(r.err).find("line 4"), std::string::npos) << r.err;
+    EXPECT_NE(firstLine(r.err).find("line 2"), std::string::npos) << r.err;
+    EXPECT_FALSE(fileExists(dir.file("m.csv")));
+}
