@@ -276,7 +276,7 @@ Command addIntervisCommand(CLI::App& root) {
         "sightline rule from i's eye (ground + height) to j's antenna (ground + j's height). "
         "Pairs beyond --reach are not judged (visible 'no', margin empty). Distances are PROJ "
         "geodesics between the given points; azimuths are grid azimuths (true on lat/lon DEMs)." +
-        cautionText());
+        conventionsText() + cautionText());
     return {app, [state] { runIntervis(*state); }};
 }
 

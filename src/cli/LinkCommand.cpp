@@ -329,7 +329,8 @@ void runLink(const LinkState& s) {
     } else {
         t.add("line of sight", "blocked, first at " + formatDistance(r.blocked_at_m) + " (" +
                                    std::to_string(r.blocked_samples) +
-                                   " samples below the sightline)");
+                                   (r.blocked_samples == 1 ? " sample" : " samples") +
+                                   " below the sightline)");
     }
     if (std::isfinite(r.min_clearance_m)) {
         t.add("least clearance",
@@ -399,7 +400,7 @@ Command addLinkCommand(CLI::App& root) {
         "or the straight map line (projected DEMs), with bilinear heights; curvature is the exact "
         "sphere of radius R/(1-k) along the path. Clearance is the sightline's height above the "
         "terrain; F1 = sqrt(lambda d1 d2 / d)." +
-        cautionText());
+        conventionsText() + cautionText());
     return {app, [state] { runLink(*state); }};
 }
 
