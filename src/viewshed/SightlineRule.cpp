@@ -6,6 +6,7 @@
 
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/Units.hpp"
+#include "lookfar/viewshed/SightlineSamples.hpp"
 
 namespace lookfar {
 
@@ -47,47 +48,32 @@ SightlineVerdict SightlineRule::judge(int col, int row, double target_height_m) 
         return v;
     }
 
-    const int dc = col - c0, dr = row - r0;
+    SightlineSamples samples;
+    samples.dem = dem_.data();
+    samples.width = dem_.width();
+    samples.c0 = c0;
+    samples.r0 = r0;
+    samples.dc = col - c0;
+    samples.dr = row - r0;
+    samples.drop_m = drop;
+    samples.eye_m = eye_m_;
     double max_gain = -std::numeric_limits<double>::infinity();
-    auto consider = [&](double t, double z) {
-        if (std::isnan(z))
-            return;  // no-data never blocks
-        double gain = (z - t * t * drop - eye_m_) / t;
-        if (gain > max_gain)
-            max_gain = gain;
-    };
-    // Column lines strictly between c0 and c1.
-    if (dc != 0) {
-        const int step = dc > 0 ? 1 : -1;
+    // Column lines, then row lines, strictly between O and C. A NaN gain (no-data) never
+    // compares greater, so no-data never blocks.
+    if (samples.dc != 0) {
+        const int step = samples.dc > 0 ? 1 : -1;
         for (int i = c0 + step; i != col; i += step) {
-            double t = static_cast<double>(i - c0) / dc;
-            double y = r0 + t * dr;
-            int ya = static_cast<int>(std::floor(y));
-            double fy = y - ya;
-            double z;
-            if (fy == 0.0) {
-                z = dem_(i, ya);
-            } else {
-                z = (1.0 - fy) * dem_(i, ya) + fy * dem_(i, ya + 1);
-            }
-            consider(t, z);
+            const double gain = samples.columnGain(i);
+            if (gain > max_gain)
+                max_gain = gain;
         }
     }
-    // Row lines strictly between r0 and r1.
-    if (dr != 0) {
-        const int step = dr > 0 ? 1 : -1;
+    if (samples.dr != 0) {
+        const int step = samples.dr > 0 ? 1 : -1;
         for (int j = r0 + step; j != row; j += step) {
-            double t = static_cast<double>(j - r0) / dr;
-            double x = c0 + t * dc;
-            int xa = static_cast<int>(std::floor(x));
-            double fx = x - xa;
-            double z;
-            if (fx == 0.0) {
-                z = dem_(xa, j);
-            } else {
-                z = (1.0 - fx) * dem_(xa, j) + fx * dem_(xa + 1, j);
-            }
-            consider(t, z);
+            const double gain = samples.rowGain(j);
+            if (gain > max_gain)
+                max_gain = gain;
         }
     }
     if (max_gain == -std::numeric_limits<double>::infinity()) {

@@ -1,0 +1,50 @@
+#pragma once
+// The terrain samples of the sightline rule, as one small inline type shared by the reference
+// rule (SightlineRule) and the fast engine's exact re-checks, so both do the very same
+// arithmetic and reach bit-identical verdicts.
+//
+// Notation (see SightlineRule.hpp)
+//   (c0, r0)    observer cell;  (dc, dr) offset of the target cell C from it, cells
+//   t           position along O→C in cell space, t = (i − c0)/dc on column line i
+//   Δ           drop at C after refraction, metres; at t the drop is t²Δ
+//   z_e         eye height DEM(O) + observer height, metres
+//   gain g(t)   (z(t) − t²Δ − z_e)/t, metres; C is visible when z_t − Δ − z_e ≥ max g
+#include <cmath>
+#include <cstddef>
+
+namespace lookfar {
+
+struct SightlineSamples {
+    const float* dem = nullptr;  ///< row-major elevations, metres, NaN = no data
+    std::ptrdiff_t width = 0;    ///< cells per row of `dem`
+    int c0 = 0, r0 = 0;          ///< observer cell
+    int dc = 0, dr = 0;          ///< target offset from the observer, cells
+    double drop_m = 0;           ///< Δ: drop at the target after refraction, metres
+    double eye_m = 0;            ///< z_e, metres
+
+    double z(int col, int row) const { return dem[row * width + col]; }
+
+    /// Gain (metres) of the sample where O→C crosses column line `col` (strictly between c0 and
+    /// c0 + dc); NaN when the sample touches no-data.
+    double columnGain(int col) const {
+        const double t = static_cast<double>(col - c0) / dc;
+        const double y = r0 + t * dr;
+        const int ya = static_cast<int>(std::floor(y));
+        const double fy = y - ya;
+        const double zs = fy == 0.0 ? z(col, ya) : (1.0 - fy) * z(col, ya) + fy * z(col, ya + 1);
+        return (zs - t * t * drop_m - eye_m) / t;
+    }
+
+    /// Gain (metres) of the sample where O→C crosses row line `row` (strictly between r0 and
+    /// r0 + dr); NaN when the sample touches no-data.
+    double rowGain(int row) const {
+        const double t = static_cast<double>(row - r0) / dr;
+        const double x = c0 + t * dc;
+        const int xa = static_cast<int>(std::floor(x));
+        const double fx = x - xa;
+        const double zs = fx == 0.0 ? z(xa, row) : (1.0 - fx) * z(xa, row) + fx * z(xa + 1, row);
+        return (zs - t * t * drop_m - eye_m) / t;
+    }
+};
+
+}  // namespace lookfar
