@@ -1,14 +1,314 @@
-// lookfar select: placeholder registered until its engine lands (see the issue tracker).
+// lookfar select: choose the candidate sites that together see the most ground (or weight).
+// The choice is lookfar/siting/SiteSelection (lazy greedy maximum coverage); this file reads
+// the candidates and the weight raster and writes the count raster, the ranked CSV and the
+// summary.
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <iostream>
+#include <map>
+
 #include "Commands.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Units.hpp"
+#include "lookfar/io/Crs.hpp"
+#include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/report/TextTable.hpp"
+#include "lookfar/siting/SiteSelection.hpp"
 
 namespace lookfar::cli {
 
+namespace {
+
+struct SelectState {
+    CommonOptions options;
+    std::string candidates;
+    int count = 0;
+    std::string coverage;  ///< empty = no coverage goal
+    std::string output;
+    std::string csv;
+    std::string weight;
+};
+
+std::string fmt(const char* format, double v) {
+    if (!std::isfinite(v))
+        return "";
+    char buf[64];
+    std::snprintf(buf, sizeof buf, format, v);
+    return buf;
+}
+
+/// Reads the weight raster and checks it lies on the DEM's grid (exit 3 naming the file).
+Grid<float> readWeights(const RunContext& ctx, const std::string& path) {
+    DemReadOptions read;
+    read.z_unit = LinearUnit{"weight", 1.0};  // weights are not lengths: never convert
+    Dem w = readDem(path, read);
+    const GridGeometry& a = ctx.dem.geometry;
+    const GridGeometry& b = w.geometry;
+    if (a.width() != b.width() || a.height() != b.height()) {
+        throw InputError(path + ": the weight raster has " + std::to_string(b.width()) + " × " +
+                         std::to_string(b.height()) + " cells, the DEM " +
+                         std::to_string(a.width()) + " × " + std::to_string(a.height()) +
+                         "; it must be on the DEM's grid");
+    }
+    const auto &ga = a.geotransform(), &gb = b.geotransform();
+    const double tol = 1e-6 * std::fmin(std::fabs(ga[1]), std::fabs(ga[5]));
+    for (int i = 0; i < 6; ++i) {
+        if (!(std::fabs(ga[i] - gb[i]) <= tol)) {
+            throw InputError(path +
+                             ": the weight raster's geotransform differs from the DEM's; it must "
+                             "be on the DEM's grid (same origin and cell size)");
+        }
+    }
+    if (!CoordinateTransform(w.crs.wkt, ctx.dem.crs.wkt).identity()) {
+        throw InputError(path + ": the weight raster's CRS (" + w.crs.name +
+                         ") is not the DEM's (" + ctx.dem.crs.name +
+                         "); it must be on the DEM's grid");
+    }
+    for (int r = 0; r < w.z.height(); ++r) {
+        for (int c = 0; c < w.z.width(); ++c) {
+            const float v = w.z(c, r);
+            if (v < 0 || std::isinf(v)) {
+                throw InputError(path + ": the weight raster holds " + fmt("%g", v) +
+                                 " at column " + std::to_string(c) + ", row " + std::to_string(r) +
+                                 "; weights must be finite and ≥ 0");
+            }
+        }
+    }
+    return std::move(w.z);
+}
+
+std::string stopReason(CoverageStop s) {
+    switch (s) {
+        case CoverageStop::ReachedCount:
+            return "count";
+        case CoverageStop::ReachedTarget:
+            return "coverage";
+        case CoverageStop::NothingToAdd:
+            return "nothing_to_add";
+    }
+    return "?";
+}
+
+void runSelect(const SelectState& s) {
+    const CommonOptions& o = s.options;
+    const bool has_count = s.count != 0;
+    const bool has_coverage = !trim(s.coverage).empty();
+    if (!has_count && !has_coverage) {
+        throw UsageError("select needs --count K, --coverage P, or both");
+    }
+    if (has_count && s.count < 1) {
+        throw UsageError("--count: " + std::to_string(s.count) + " must be at least 1");
+    }
+    double coverage = std::numeric_limits<double>::quiet_NaN();
+    if (has_coverage) {
+        const std::string t = trim(s.coverage);
+        char* end = nullptr;
+        coverage = std::strtod(t.c_str(), &end);
+        if (*end != '\0' || !(coverage > 0 && coverage <= 100)) {
+            throw UsageError("--coverage: '" + t + "' is not a percentage in (0, 100]");
+        }
+    }
+    std::vector<std::string> inputs = {s.candidates};
+    if (!s.weight.empty())
+        inputs.push_back(s.weight);
+    RunContext ctx = prepareRun("select", o, {s.output, s.csv}, inputs);
+    const std::vector<Site> sites = readSitesCsv(s.candidates);
+    const int n = static_cast<int>(sites.size());
+    if (has_count && s.count > n) {
+        throw UsageError("--count: " + std::to_string(s.count) + " is more than the " +
+                         std::to_string(n) + " candidates in " + s.candidates);
+    }
+    std::map<std::string, int> line_of_name;
+    std::vector<std::string> what, names;
+    std::vector<MapPoint> given;
+    std::vector<double> heights;
+    for (const Site& site : sites) {
+        const std::string where = s.candidates + ", line " + std::to_string(site.line);
+        auto [it, fresh] = line_of_name.emplace(site.name, site.line);
+        if (!fresh) {
+            throw InputError(where + ": the candidate name '" + site.name +
+                             "' is already used on line " + std::to_string(it->second) +
+                             "; the ranking needs unique names");
+        }
+        what.push_back(where + ": candidate '" + site.name + "' at");
+        names.push_back(site.name);
+        given.push_back({site.x, site.y});
+        heights.push_back(site.height_m.value_or(ctx.observer_height_m));
+    }
+    const std::vector<Observer> candidates = placeObservers(ctx, what, given, heights, names);
+    Grid<float> weights;
+    if (!s.weight.empty())
+        weights = readWeights(ctx, s.weight);
+
+    SiteSelectionOptions opt;
+    opt.max_sites = has_count ? s.count : n;
+    opt.coverage_percent = coverage;
+    opt.target_height_m = ctx.target_height_m;
+    opt.reach_m = ctx.reach_m;
+    opt.method = o.method == "reference" ? ViewshedMethod::Reference : ViewshedMethod::Fast;
+    opt.weight = s.weight.empty() ? nullptr : &weights;
+    const SiteSelectionResult res =
+        selectSites(ctx.dem.z, ctx.dem.geometry, ctx.earth, candidates, opt, *ctx.progress);
+
+    std::string chosen;
+    for (const SelectedSite& p : res.ranked)
+        chosen += (chosen.empty() ? "" : "; ") + candidates[p.candidate].name;
+    ctx.run.extra["CANDIDATES"] = s.candidates;
+    ctx.run.extra["COUNT"] = has_count ? std::to_string(s.count) : "none";
+    ctx.run.extra["COVERAGE_PERCENT"] = has_coverage ? fmt("%.10g", coverage) : "none";
+    ctx.run.extra["WEIGHT"] = s.weight.empty() ? "ground area" : s.weight;
+    ctx.run.extra["SELECTED"] = chosen;
+
+    // Count raster, ranked CSV, summary.
+    writeGrid(ctx, s.output, PixelType::UInt16, kCountNoData, res.count.data(),
+              "number of chosen sites that see the cell (65535: not evaluated)");
+    std::string csv = "rank,name,x,y,marginal_area_m2,cumulative_area_m2,cumulative_percent\n";
+    for (std::size_t k = 0; k < res.ranked.size(); ++k) {
+        const SelectedSite& p = res.ranked[k];
+        const Site& site = sites[p.candidate];
+        csv += std::to_string(k + 1) + "," + csvField(site.name) + "," + fmt("%.10g", site.x) +
+               "," + fmt("%.10g", site.y) + "," + fmt("%.1f", p.marginal_area_m2) + "," +
+               fmt("%.1f", p.cumulative_area_m2) + "," + fmt("%.4f", p.cumulative_percent) + "\n";
+    }
+    if (!s.csv.empty())
+        writeTextFile(s.csv, csv);
+
+    nlohmann::json j = summaryBase(ctx.run);
+    j["parameters"]["count"] = has_count ? nlohmann::json(s.count) : nlohmann::json(nullptr);
+    j["parameters"]["coverage_percent"] = finiteOrNull(coverage);
+    j["parameters"]["weight"] =
+        s.weight.empty() ? nlohmann::json(nullptr) : nlohmann::json(s.weight);
+    j["candidates_file"] = s.candidates;
+    j["evaluated_cells"] = res.evaluated_cells;
+    j["evaluated_area_m2"] = res.evaluated_area_m2;
+    j["total_weight"] = res.weighted ? nlohmann::json(res.total_weight) : nlohmann::json(nullptr);
+    j["stop_reason"] = stopReason(res.stop);
+    j["coverage_reached"] = has_coverage ? nlohmann::json(res.coverage_reached) : nullptr;
+    j["greedy_guarantee"] =
+        "the chosen sites cover at least (1 - 1/e) = 63.2 % of what the best set of as many "
+        "candidates would";
+    nlohmann::json ranked = nlohmann::json::array();
+    std::vector<int> rank_of(n, 0);
+    for (std::size_t k = 0; k < res.ranked.size(); ++k) {
+        const SelectedSite& p = res.ranked[k];
+        rank_of[p.candidate] = static_cast<int>(k + 1);
+        nlohmann::json e = {{"rank", k + 1},
+                            {"name", sites[p.candidate].name},
+                            {"x", sites[p.candidate].x},
+                            {"y", sites[p.candidate].y},
+                            {"marginal_cells", p.marginal_cells},
+                            {"marginal_area_m2", p.marginal_area_m2},
+                            {"cumulative_area_m2", p.cumulative_area_m2},
+                            {"cumulative_percent", p.cumulative_percent}};
+        if (res.weighted) {
+            e["marginal_weight"] = p.marginal_weight;
+            e["cumulative_weight"] = p.cumulative_weight;
+        }
+        ranked.push_back(e);
+    }
+    j["selected"] = ranked;
+    nlohmann::json all = nlohmann::json::array();
+    for (int i = 0; i < n; ++i) {
+        const Observer& c = candidates[i];
+        const float ground = ctx.dem.z(c.col, c.row);
+        nlohmann::json e = {{"name", c.name},
+                            {"x", sites[i].x},
+                            {"y", sites[i].y},
+                            {"ground_m", ground},
+                            {"eye_m", ground + c.height_m},
+                            {"visible_area_m2", res.alone_area_m2[i]},
+                            {"rank", rank_of[i] ? nlohmann::json(rank_of[i]) : nullptr}};
+        if (res.weighted)
+            e["visible_weight"] = res.alone_weight[i];
+        all.push_back(e);
+    }
+    j["candidates"] = all;
+    std::vector<std::int64_t> by_count(res.ranked.size() + 1, 0);
+    for (std::uint16_t v : res.count.cells()) {
+        if (v != kCountNoData && v < by_count.size())
+            ++by_count[v];
+    }
+    j["coverage"] = {
+        {"cells_seen_by_any", res.evaluated_cells - by_count[0]},
+        {"area_seen_by_any_m2", res.ranked.empty() ? 0.0 : res.ranked.back().cumulative_area_m2},
+        {"cells_by_count", by_count}};
+
+    TextTable t("Sites chosen from " + std::to_string(n) + " candidates on " + ctx.dem.path);
+    t.setHeader({"rank", "site", "adds", "total", res.weighted ? "% of weight" : "% of area"});
+    for (std::size_t k = 0; k < res.ranked.size(); ++k) {
+        const SelectedSite& p = res.ranked[k];
+        t.addRow({std::to_string(k + 1), sites[p.candidate].name, formatArea(p.marginal_area_m2),
+                  formatArea(p.cumulative_area_m2), formatNumber(p.cumulative_percent, 2)});
+    }
+    std::string table = t.render();
+    TextTable foot("");
+    foot.add("evaluated ground", formatArea(res.evaluated_area_m2) + " (" +
+                                     formatNumber(static_cast<double>(res.evaluated_cells), 0) +
+                                     " cells within reach of a candidate)");
+    if (res.stop == CoverageStop::NothingToAdd && has_count &&
+        static_cast<int>(res.ranked.size()) < s.count) {
+        foot.add("note", "the other candidates see nothing new; " +
+                             std::to_string(res.ranked.size()) + " sites chosen, not " +
+                             std::to_string(s.count));
+    }
+    if (has_coverage) {
+        foot.add("coverage goal",
+                 fmt("%g", coverage) + " %: " + (res.coverage_reached ? "reached" : "not reached"));
+    }
+    foot.add("guarantee", "greedy choice: at least 63.2 % (1 - 1/e) of the best possible");
+    if (has_coverage && !res.coverage_reached) {
+        std::cerr << "lookfar: the coverage goal of " << fmt("%g", coverage)
+                  << " % is not reached with all useful candidates ("
+                  << fmt("%.2f", res.ranked.empty() ? 0.0 : res.ranked.back().cumulative_percent)
+                  << " %)\n";
+    }
+    finishSummary(ctx, j, table + foot.render());
+}
+
+}  // namespace
+
 Command addSelectCommand(CLI::App& root) {
-    auto state = std::make_shared<CommonOptions>();
-    CLI::App* app = root.add_subcommand("select", "(not available yet)");
-    addCommonOptions(app, *state);
-    return {app, [] { throw InternalError("'select' is not available in this build yet"); }};
+    auto state = std::make_shared<SelectState>();
+    CLI::App* app = root.add_subcommand(
+        "select",
+        "choose from candidate sites the few that together see the most ground (lazy greedy "
+        "maximum coverage over their viewsheds)");
+    addCommonOptions(app, state->options, kAllCommon);
+    app->get_option("--observer-height")
+        ->description(
+            "height of a candidate above the ground when its CSV row gives none, "
+            "metres");
+    app->add_option("--candidates", state->candidates,
+                    "CSV of candidate sites: name,x,y and optional height (metres above ground)")
+        ->required()
+        ->group("Choice");
+    app->add_option("--count", state->count, "choose at most K sites (1 ≤ K ≤ candidates)")
+        ->group("Choice");
+    app->add_option("--coverage", state->coverage,
+                    "choose as few sites as see P percent of the evaluated ground (or weight), "
+                    "0 < P ≤ 100")
+        ->group("Choice");
+    app->add_option("--weight", state->weight,
+                    "raster on the DEM's grid of per-cell weights ≥ 0 (e.g. priority or "
+                    "population) to maximise instead of ground area; no-data counts 0")
+        ->group("Choice");
+    app->add_option("-o,--output", state->output,
+                    "coverage count raster (UInt16: how many chosen sites see each cell; 65535 "
+                    "outside reach of every candidate or on DEM no-data)")
+        ->required()
+        ->group("Output");
+    app->add_option("--csv", state->csv,
+                    "ranked CSV (rank,name,x,y,marginal_area_m2,cumulative_area_m2,"
+                    "cumulative_percent)")
+        ->group("Output");
+    app->footer(
+        "\nGreedy choice: each step takes the candidate whose viewshed adds the most ground not "
+        "yet seen. Coverage is submodular, so the greedy sites cover at least 1 - 1/e (63.2 %) "
+        "of what the best set of as many sites would, and usually as much. Percentages are of "
+        "the ground with data within reach of at least one candidate (or of its total weight)." +
+        conventionsText() + cautionText());
+    return {app, [state] { runSelect(*state); }};
 }
 
 }  // namespace lookfar::cli
