@@ -229,3 +229,55 @@ TEST(IntervisCliTest, DuplicateStationNamesAreBadInput) {
     EXPECT_NE(firstLine(r.err).find("line 2"), std::string::npos) << r.err;
     EXPECT_FALSE(fileExists(dir.file("m.csv")));
 }
+
+// Real terrain (REFERENCES.md row 13: the USGS 3″ sample, converted at test time): `link`
+// (bilinear samples every half cell, exact sphere) and `intervis` (the sightline rule's row and
+// column crossings, parabolic drop) are two independent implementations of "visible"; on every
+// pair whose verdict is not within a few metres of the limit they must agree.
+TEST(IntervisCliTest, LinkAndIntervisAgreeOnTheUsgsSample) {
+    ScratchDir dir;
+    // Summits of blocks of the sample (their highest cells) and one lower point.
+    const int cells[7][2] = {{117, 100}, {285, 43},  {133, 212}, {169, 200},
+                             {219, 297}, {268, 276}, {40, 30}};
+    std::ofstream csv(dir.file("st.csv"));
+    csv << "name,x,y,height\n";
+    std::vector<std::string> points;
+    for (int i = 0; i < 7; ++i) {
+        char p[64];
+        std::snprintf(p, sizeof p, "%.9f,%.9f", -84.41375 + (cells[i][0] + 0.5) / 1200.0,
+                      36.7329167 - (cells[i][1] + 0.5) / 1200.0);
+        points.push_back(p);
+        csv << "s" << i << "," << p << ",20\n";
+    }
+    csv.close();
+    CliResult r = runLookfar({"intervis", usgsSample(), "--stations", dir.file("st.csv"), "-o",
+                              dir.file("m.csv"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    std::map<std::string, double> margin;
+    for (const auto& f : readCsv(dir.file("m.csv")))
+        if (f[0] != "from")
+            margin[f[0] + ">" + f[1]] = std::stod(f[3]);
+    int compared = 0, clear = 0;
+    for (int i = 0; i < 7; ++i) {
+        for (int j = i + 1; j < 7; ++j) {
+            const double m = margin["s" + std::to_string(i) + ">s" + std::to_string(j)];
+            CliResult l =
+                runLookfar({"link", usgsSample(), "--from", points[i], "--to", points[j],
+                            "--from-height", "20", "--to-height", "20", "--json", "--quiet"});
+            ASSERT_EQ(l.exit_code, 0) << l.err;
+            const auto j_link = nlohmann::json::parse(l.out);
+            const double least = j_link["min_clearance_m"].get<double>();
+            if (std::fabs(m) < 3 || std::fabs(least) < 1)
+                continue;  // near the limit the two samplings may differ
+            ++compared;
+            clear += m >= 0;
+            EXPECT_EQ(m >= 0, j_link["line_of_sight"] == "clear")
+                << "s" << i << " ↔ s" << j << ": margin " << m << " m, least clearance " << least;
+        }
+    }
+    EXPECT_GE(compared, 12);
+    EXPECT_GE(clear, 3);
+    EXPECT_LE(clear, compared - 3);
+    RecordProperty("pairs_compared", compared);
+    RecordProperty("pairs_clear", clear);
+}
