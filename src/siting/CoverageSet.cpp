@@ -1,3 +1,5 @@
+// CoverageSet: one bit per cell over a window whose columns are whole 64-cell words of the grid.
+//   word w of a row holds columns 64·w … 64·w + 63; bit b is column 64·w + b
 #include "lookfar/siting/CoverageSet.hpp"
 
 #include <algorithm>
