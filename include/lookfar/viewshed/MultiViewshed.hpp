@@ -1,0 +1,36 @@
+#pragma once
+// Viewsheds of many observers at once: how many of them see each cell, the best margin over
+// them, and each one's statistics. Sites run in parallel, each on the window within its reach;
+// no grid is kept per site.
+#include <cstdint>
+#include <vector>
+
+#include "lookfar/core/Grid.hpp"
+#include "lookfar/core/GridGeometry.hpp"
+#include "lookfar/core/Progress.hpp"
+#include "lookfar/earth/EarthModel.hpp"
+#include "lookfar/stats/ViewshedStats.hpp"
+#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/viewshed/Viewshed.hpp"
+
+namespace lookfar {
+
+struct MultiViewshedResult {
+    /// Number of sites that see each cell (the DEM's size); kNoCount where no site reaches the
+    /// cell or the DEM has no data.
+    Grid<std::uint16_t> count;
+    /// Largest margin over the sites that reach the cell, metres (NaN = no data); empty unless
+    /// options.want_margin.
+    Grid<float> best_margin;
+    std::vector<ViewshedStats> sites;  ///< one per observer, in the order given
+};
+
+/// Runs the engine of options.method for every observer (at most 65 534) and combines the
+/// results. options.want_angle must be false (an angle has no meaning over several sites) and
+/// options.crop_to_reach is implied. Identical for any number of threads.
+MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& geometry,
+                                  const EarthModel& earth, const std::vector<Observer>& observers,
+                                  const ViewshedOptions& options,
+                                  Progress& progress = silentProgress());
+
+}  // namespace lookfar

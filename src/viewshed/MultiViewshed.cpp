@@ -1,0 +1,130 @@
+// Viewsheds of many observers (see MultiViewshed.hpp). With at least as many sites as threads,
+// the sites run in parallel, each engine on one thread over the window within its reach; with
+// fewer, one site after the other, each engine on every thread. Counts are sums and margins
+// maxima, so the order in which sites finish does not change the result.
+#include "lookfar/viewshed/MultiViewshed.hpp"
+
+#include <atomic>
+#include <cmath>
+#include <exception>
+#include <limits>
+#include <string>
+
+#ifdef _OPENMP
+#include <omp.h>
+#endif
+
+#include "lookfar/core/Errors.hpp"
+
+namespace lookfar {
+
+namespace {
+
+/// Progress for the engine of one site: shows nothing, but passes the user's Ctrl-C through.
+class CancelOnly final : public Progress {
+  public:
+    explicit CancelOnly(const Progress& outer) : outer_(outer) {}
+    bool cancelled() const override { return outer_.cancelled(); }
+
+  private:
+    const Progress& outer_;
+};
+
+void merge(MultiViewshedResult& out, const ViewshedGrids& g) {
+    const CellWindow& w = g.window;
+    const int dem_width = out.count.width();
+    for (int wr = 0; wr < w.height; ++wr) {
+        const std::uint8_t* vis = g.visible.row(wr);
+        std::uint16_t* count = out.count.data() + static_cast<std::size_t>(w.row0 + wr) * dem_width;
+        float* best =
+            out.best_margin.empty()
+                ? nullptr
+                : out.best_margin.data() + static_cast<std::size_t>(w.row0 + wr) * dem_width;
+        const float* margin = g.margin.empty() ? nullptr : g.margin.row(wr);
+        for (int wc = 0; wc < w.width; ++wc) {
+            const std::uint8_t v = vis[wc];
+            if (v == kNoVisibility)
+                continue;
+            const int c = w.col0 + wc;
+            std::uint16_t n = count[c] == kNoCount ? 0 : count[c];
+            count[c] = static_cast<std::uint16_t>(n + (v == kVisible ? 1 : 0));
+            if (best && margin && !(best[c] >= margin[wc]))
+                best[c] = margin[wc];  // NaN in best (nothing yet) is replaced
+        }
+    }
+}
+
+}  // namespace
+
+MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& geometry,
+                                  const EarthModel& earth, const std::vector<Observer>& observers,
+                                  const ViewshedOptions& options, Progress& progress) {
+    if (observers.empty())
+        throw UsageError("no sites were given");
+    if (observers.size() >= kNoCount) {
+        throw UsageError(std::to_string(observers.size()) +
+                         " sites are more than a count raster can hold (at most 65534)");
+    }
+    if (options.want_angle)
+        throw UsageError("an elevation-angle layer needs a single observer, not several sites");
+    for (const Observer& o : observers)
+        validateViewshedInputs(dem, o, options);
+
+    MultiViewshedResult out;
+    out.count = Grid<std::uint16_t>(dem.width(), dem.height(), kNoCount);
+    if (options.want_margin) {
+        out.best_margin =
+            Grid<float>(dem.width(), dem.height(), std::numeric_limits<float>::quiet_NaN());
+    }
+    out.sites.resize(observers.size());
+    ViewshedOptions site_options = options;
+    site_options.crop_to_reach = true;
+
+    const int n = static_cast<int>(observers.size());
+    int threads = 1;
+#ifdef _OPENMP
+    threads = omp_get_max_threads();
+#endif
+    progress.begin(n == 1 ? "viewshed" : "viewsheds of " + std::to_string(n) + " sites", n);
+    std::atomic<int> done{0};
+    std::atomic<bool> stop{false};
+    CancelOnly inner(progress);
+    auto one = [&](int i) {
+        ViewshedGrids g = computeViewshed(dem, geometry, earth, observers[i], site_options, inner);
+        out.sites[i] = summarizeViewshed(g.visible, g.window, geometry, observers[i]);
+#pragma omp critical(lookfar_multiviewshed_merge)
+        merge(out, g);
+    };
+    std::exception_ptr failure;  // the first error of any site, rethrown after the loop
+    auto guarded = [&](int i) {
+        try {
+            one(i);
+        } catch (...) {
+#pragma omp critical(lookfar_multiviewshed_error)
+            if (!failure)
+                failure = std::current_exception();
+            stop = true;
+            return;
+        }
+        const int d = ++done;
+#pragma omp critical(lookfar_progress)
+        progress.advance(d);
+    };
+    if (n >= threads && threads > 1) {
+#pragma omp parallel for schedule(dynamic, 1)
+        for (int i = 0; i < n; ++i) {
+            if (!stop.load(std::memory_order_relaxed))
+                guarded(i);  // the engine's own parallel loop runs on this thread alone
+        }
+    } else {
+        for (int i = 0; i < n && !stop; ++i)
+            guarded(i);
+    }
+    progress.end();
+    if (failure)
+        std::rethrow_exception(failure);
+    throwIfCancelled(progress);
+    return out;
+}
+
+}  // namespace lookfar
