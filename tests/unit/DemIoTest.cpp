@@ -86,6 +86,7 @@ TEST(DemIoTest, OutputChecks) {
 
 namespace {
 std::string readMetadata(const std::string& path, const char* key, const char* domain = nullptr) {
+    GDALAllRegister();
     GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
     if (!ds)
         return "";
@@ -130,6 +131,7 @@ TEST(DemIoTest, WriterRecordsMetadataDescriptionsAndCreationOptions) {
 
 // Any format GDAL reads: a VRT mosaic of two halves of a DEM reads as the whole DEM.
 TEST(DemIoTest, ReadsAVrtMosaic) {
+    GDALAllRegister();  // this test calls GDAL itself before lookfar's io has registered it
     ScratchDir dir;
     std::string src = testRaster("cone.tif");
     GDALDatasetH whole = GDALOpen(src.c_str(), GA_ReadOnly);
