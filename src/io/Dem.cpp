@@ -5,6 +5,7 @@
 #include <ogr_srs_api.h>
 #include <sys/stat.h>
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -172,10 +173,24 @@ Dem readDem(const std::string& path, const DemReadOptions& options) {
     int w = dem.geometry.width(), h = dem.geometry.height();
     dem.z = Grid<float>(w, h);
     GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
-    if (GDALRasterIO(band, GF_Read, options.win_col, options.win_row, w, h, dem.z.data(), w, h,
-                     GDT_Float32, 0, 0) != CE_None) {
-        throw InputError(path + ": reading the elevations failed (" + io_detail::lastGdalError() +
-                         ")");
+    // Read in strips of whole block rows and drop the band's block cache after each: otherwise
+    // GDAL keeps a decoded copy of every block (up to GDAL_CACHEMAX, 5 % of RAM by default) next
+    // to the grid, doubling the memory a large DEM needs.
+    int block_x = 0, block_y = 0;
+    GDALGetBlockSize(band, &block_x, &block_y);
+    block_y = std::max(1, block_y);
+    const int strip_rows = block_y * std::max(1, (256 + block_y - 1) / block_y);
+    for (int r = 0; r < h;) {
+        const int abs_row = options.win_row + r;
+        const int end_row = std::min((abs_row / strip_rows + 1) * strip_rows, options.win_row + h);
+        const int rows = end_row - abs_row;
+        if (GDALRasterIO(band, GF_Read, options.win_col, abs_row, w, rows, dem.z.row(r), w, rows,
+                         GDT_Float32, 0, 0) != CE_None) {
+            throw InputError(path + ": reading the elevations failed (" +
+                             io_detail::lastGdalError() + ")");
+        }
+        GDALFlushRasterCache(band);
+        r += rows;
     }
     const float nan = std::numeric_limits<float>::quiet_NaN();
     const bool has_nd = dem.nodata.has_value();
