@@ -56,7 +56,7 @@ namespace {
 constexpr double kNegInf = -std::numeric_limits<double>::infinity();
 constexpr double kPosInf = std::numeric_limits<double>::infinity();
 /// Width of a wedge across its sightlines, cells, before it is split (tuned with tools/bench).
-constexpr double kLateralCells = 2.0;
+constexpr double kLateralCells = 4.0;
 /// Steps before a target that a re-check evaluates exactly before it trusts the bounds.
 constexpr int kNearSteps = 1;
 /// Steps per block of the block maxima that speed up the search for blocking steps.
@@ -124,9 +124,14 @@ class FastEngine {
   private:
     void setUpOctants();
     void runTask(const Task& task, Scratch& scratch) const;
+    // The hot path is compiled twice: for octants whose major axis is the columns
+    // (Swap = false) and for those whose major axis is the rows (Swap = true).
+    template <bool Swap>
     void node(const Octant& o, const Task& task, Scratch& s, int level, std::int64_t p, int i_begin,
               Prefix prefix) const;
+    template <bool Swap>
     LineBounds lineBounds(const Octant& o, int i, int level, std::int64_t p, double scale) const;
+    template <bool Swap>
     void decideColumn(const Octant& o, const Scratch& s, int a, std::int64_t b_lo,
                       std::int64_t b_hi, const Prefix& prefix) const;
     void decideExactly(const Octant& o, const Scratch& s, int a, int b, int col, int row,
@@ -146,6 +151,9 @@ class FastEngine {
     LocalFrame frame_;
     Curvature curvature_;
     bool want_margin_, want_angle_;
+    bool bounds_decide_;          ///< the bounds alone may decide a cell (no margin or angle asked)
+    const double* east_per_col_;  ///< frame_.east_per_col
+    const double* north_of_row_;  ///< frame_.north_of_row
     bool has_nodata_;  ///< the DEM holds no-data cells (otherwise the bounds skip the checks)
     ViewshedGrids& out_;
     CellWindow win_;
@@ -172,6 +180,9 @@ FastEngine::FastEngine(const Grid<float>& dem, const GridGeometry& geometry,
       curvature_(earth.curvatureAt(observer.latitude_deg)),
       want_margin_(options.want_margin),
       want_angle_(options.want_angle),
+      bounds_decide_(!options.want_margin && !options.want_angle),
+      east_per_col_(frame_.east_per_col.data()),
+      north_of_row_(frame_.north_of_row.data()),
       has_nodata_(std::any_of(dem.cells().begin(), dem.cells().end(),
                               [](float v) { return std::isnan(v); })),
       out_(out),
@@ -314,9 +325,13 @@ void FastEngine::runTask(const Task& task, Scratch& scratch) const {
     const Octant& o = octants_[task.octant];
     scratch.hi[0] = kNegInf;  // step 0 (the observer's own major line) has no sample
     scratch.block_max[0] = kNegInf;
-    node(o, task, scratch, 0, 0, 1, Prefix{});
+    if (o.swap)
+        node<true>(o, task, scratch, 0, 0, 1, Prefix{});
+    else
+        node<false>(o, task, scratch, 0, 0, 1, Prefix{});
 }
 
+template <bool Swap>
 void FastEngine::node(const Octant& o, const Task& task, Scratch& s, int level, std::int64_t p,
                       int i_begin, Prefix prefix) const {
     const std::int64_t den = std::int64_t(1) << level;
@@ -364,7 +379,7 @@ void FastEngine::node(const Octant& o, const Task& task, Scratch& s, int level, 
         b_hi = std::min(b_hi, b_lim);
 
         // Read major line i, which finishes step i − 1.
-        const LineBounds lb = lineBounds(o, i, level, p, scale);
+        const LineBounds lb = lineBounds<Swap>(o, i, level, p, scale);
         {
             const int st = i - 1;
             const double z = std::max(prefix.z_hi, lb.near_hi);
@@ -388,7 +403,7 @@ void FastEngine::node(const Octant& o, const Task& task, Scratch& s, int level, 
             }
         }
         if (b_lo <= b_hi)
-            decideColumn(o, s, i, b_lo, b_hi, prefix);
+            decideColumn<Swap>(o, s, i, b_lo, b_hi, prefix);
         // Step i waits for line i + 1.
         prefix.z_hi = lb.near_hi;
         prefix.z_lo = lb.z_lo;
@@ -398,13 +413,14 @@ void FastEngine::node(const Octant& o, const Task& task, Scratch& s, int level, 
         return;
     if (level < kTaskLevel) {
         const std::int64_t child = (task.q >> (kTaskLevel - level - 1)) & 1;
-        node(o, task, s, level + 1, 2 * p + child, i_end, prefix);
+        node<Swap>(o, task, s, level + 1, 2 * p + child, i_end, prefix);
     } else {
-        node(o, task, s, level + 1, 2 * p, i_end, prefix);
-        node(o, task, s, level + 1, 2 * p + 1, i_end, prefix);
+        node<Swap>(o, task, s, level + 1, 2 * p, i_end, prefix);
+        node<Swap>(o, task, s, level + 1, 2 * p + 1, i_end, prefix);
     }
 }
 
+template <bool Swap>
 LineBounds FastEngine::lineBounds(const Octant& o, int i, int level, std::int64_t p,
                                   double scale) const {
     // The wedge's edges are dyadic fractions p/2^L and (p + 1)/2^L, so every range below is
@@ -475,10 +491,11 @@ double FastEngine::stepGain(const Octant& o, const SightlineSamples& ss, int a, 
     return g;
 }
 
+template <bool Swap>
 void FastEngine::decideColumn(const Octant& o, const Scratch& s, int a, std::int64_t b_lo,
                               std::int64_t b_hi, const Prefix& prefix) const {
     // Cells (a, b_lo … b_hi) of one major line. Distance, drop and rise are computed exactly as
-    // SightlineRule::judge computes them.
+    // SightlineRule::judge computes them: east = (col − c0)·e_row, north = n_row.
     const double a_d = a;
     const double vis_above =
         a_d * prefix.h_hi + kSlackM +
@@ -486,25 +503,28 @@ void FastEngine::decideColumn(const Octant& o, const Scratch& s, int a, std::int
     const double hid_below =
         a_d * prefix.h_lo - kSlackM -
         (std::isfinite(prefix.h_lo) ? kSlackRel * a_d * std::fabs(prefix.h_lo) : 0.0);
-    const bool general = want_margin_ || want_angle_ || a <= 1;
+    const bool bounds_decide = bounds_decide_ && a > 1;
     const double reach2 = reach_m_ * reach_m_ * (1.0 - 1e-12);
+    const double cn = curvature_.c_north, ce = curvature_.c_east;
+    // The fixed coordinate of this major line.
+    const int fixed = Swap ? r0_ + o.s_major * a : c0_ + o.s_major * a;
     for (std::int64_t bb = b_lo; bb <= b_hi; ++bb) {
         const int b = static_cast<int>(bb);
-        const int col = o.swap ? c0_ + o.s_minor * b : c0_ + o.s_major * a;
-        const int row = o.swap ? r0_ + o.s_major * a : r0_ + o.s_minor * b;
+        const int col = Swap ? c0_ + o.s_minor * b : fixed;
+        const int row = Swap ? fixed : r0_ + o.s_minor * b;
         const float ground = z_[row * width_ + col];
         if (std::isnan(ground))
             continue;
-        const double east = frame_.east(col, row);
-        const double north = frame_.north(row);
+        const double east = (col - c0_) * east_per_col_[row];
+        const double north = north_of_row_[row];
         if (finite_reach_ && !(east * east + north * north <= reach2) &&
             std::hypot(east, north) > reach_m_)
             continue;
-        const double drop = curvature_.drop(east, north);
+        const double drop = cn * north * north + ce * east * east;  // Curvature::drop
         const double rise = ground + target_m_ - drop - eye_m_;
         const std::size_t oi =
             static_cast<std::size_t>(row - win_.row0) * win_.width + (col - win_.col0);
-        if (!general) {
+        if (bounds_decide) {
             if (rise > vis_above) {
                 out_.visible.data()[oi] = kVisible;
                 continue;
