@@ -341,12 +341,13 @@ Command addViewshedCommand(CLI::App& root) {
                     "degrees (single observer)")
         ->group("Output");
     app->footer(
-        "\nEngines: 'fast' (default) follows wedges of sightlines outward from the observer with "
-        "bounds of the terrain they meet and re-checks exactly the cells the bounds leave open; "
-        "'reference' judges every cell on its own. Both give the same result; the reference is "
-        "much slower. Summary: visible cells and true ground area, the visible fraction of the "
-        "evaluated area (cells within reach with data), the farthest visible cell and the "
-        "visible area by distance band." +
+        "\nEngines: 'fast' (the default) follows wedges of sightlines outward from the observer,\n"
+        "  with bounds of the terrain they meet, and re-checks exactly the cells the bounds leave\n"
+        "  open; 'reference' judges every cell on its own. Both give the same result, cell for\n"
+        "  cell; the reference is much slower.\n"
+        "Summary: visible cells and their true ground area, the visible fraction of the evaluated\n"
+        "  area (cells within reach with data), the farthest visible cell and the visible area by\n"
+        "  distance band (0-1, 1-5, 5-10, 10-25, 25-50, >50 km).\n" +
         conventionsText() + cautionText());
     return {app, [state] { runViewshed(*state); }};
 }

@@ -361,3 +361,24 @@ TEST(ViewshedCliTest, ObserverCoordinatesInAnyCrs) {
     EXPECT_EQ(b["visible_cells"], a["visible_cells"]);
     EXPECT_DOUBLE_EQ(b["x"].get<double>(), -4.08734051105243);  // as given, in --crs
 }
+
+// DESIGN.md: results are identical for any --threads (one observer, and several sites, which
+// run in parallel when there are at least as many sites as threads).
+TEST(ViewshedCliTest, IdenticalRastersForAnyThreadCount) {
+    ScratchDir dir;
+    std::vector<Band> single, multi;
+    for (const char* t : {"1", "2", "5"}) {
+        const std::string a = dir.file(std::string("v") + t + ".tif");
+        const std::string b = dir.file(std::string("c") + t + ".tif");
+        runJson({"viewshed", testRaster("demo_coast.tif"), "--observer", "425087.5,5597212.5",
+                 "--observer-height", "25", "-o", a, "--threads", t});
+        runJson({"viewshed", testRaster("demo_coast.tif"), "--sites", testRaster("demo_sites.csv"),
+                 "-o", b, "--threads", t});
+        single.push_back(readBand(a));
+        multi.push_back(readBand(b));
+    }
+    for (std::size_t k = 1; k < single.size(); ++k) {
+        EXPECT_EQ(single[k].values, single[0].values);
+        EXPECT_EQ(multi[k].values, multi[0].values);
+    }
+}
