@@ -63,7 +63,9 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
         ->check(CLI::PositiveNumber)
         ->group("Input");
     if (which & kMethodOption) {
-        app->add_option("--method", o.method, "engine: fast, or reference (exact, slow)")
+        app->add_option("--method", o.method,
+                        "engine: fast (default), or reference (the sightline rule cell by cell: "
+                        "same result, slow)")
             ->capture_default_str()
             ->check(CLI::IsMember({"fast", "reference"}))
             ->group("Engine");

@@ -44,11 +44,13 @@ double parseLengthMetres(const std::string& text, const std::string& what) {
     }
     std::string suffix = trim(std::string(end));
     double factor = 1.0;
-    if (!suffix.empty()) {
+    if (suffix == "km") {
+        factor = 1000.0;
+    } else if (!suffix.empty()) {
         auto unit = parseLinearUnit(suffix);
         if (!unit) {
             throw UsageError(what + ": unknown unit '" + suffix + "' in '" + text +
-                             "' (use m, ft or us-ft)");
+                             "' (use m, km, ft or us-ft)");
         }
         factor = unit->metres;
     }

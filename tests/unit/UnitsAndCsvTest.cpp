@@ -18,6 +18,7 @@ TEST(UnitsTest, LengthsWithSuffixes) {
     EXPECT_DOUBLE_EQ(parseLengthMetres("100ft", "--x"), 30.48);
     EXPECT_DOUBLE_EQ(parseLengthMetres("100 m", "--x"), 100.0);
     EXPECT_NEAR(parseLengthMetres("3937us-ft", "--x"), 1200.0, 1e-9);
+    EXPECT_DOUBLE_EQ(parseLengthMetres("8km", "--x"), 8000.0);
     EXPECT_THROW(parseLengthMetres("tall", "--x"), UsageError);
     EXPECT_THROW(parseLengthMetres("10 furlongs", "--x"), UsageError);
     EXPECT_THROW(parseLengthMetres("nan", "--x"), UsageError);

@@ -21,7 +21,7 @@ struct LinearUnit {
 /// "international foot", "us-ft", "US survey foot", "ftUS"); nullopt for anything else.
 std::optional<LinearUnit> parseLinearUnit(const std::string& text);
 
-/// Parses a length with an optional unit suffix (m, ft, us-ft) into metres.
+/// Parses a length with an optional unit suffix (m, km, ft, us-ft) into metres.
 /// Throws UsageError naming `what` (e.g. "--observer-height") when malformed or non-finite.
 double parseLengthMetres(const std::string& text, const std::string& what);
 
