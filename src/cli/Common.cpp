@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdio>
 #include <fstream>
+#include <map>
 #include <iostream>
 
 #ifdef _OPENMP
@@ -262,29 +263,7 @@ double latitudeOf(const RunContext& ctx, const MapPoint& p_dem) {
 
 Observer placeObserver(const RunContext& ctx, const std::string& what, double x, double y,
                        double height_m, const std::string& name) {
-    MapPoint p = toDemCrs(ctx, {x, y});
-    const auto& g = ctx.dem.geometry;
-    if (!g.containsMap(p.x, p.y)) {
-        char buf[256];
-        std::snprintf(buf, sizeof buf,
-                      "%s %.10g,%.10g is outside the DEM %s (x %.10g to %.10g, y %.10g to %.10g)",
-                      what.c_str(), x, y, ctx.dem.path.c_str(), g.mapX(-0.5),
-                      g.mapX(g.width() - 0.5), g.mapY(g.height() - 0.5), g.mapY(-0.5));
-        throw InputError(buf);
-    }
-    Observer o;
-    o.name = name;
-    o.col = g.cellColOf(p.x);
-    o.row = g.cellRowOf(p.y);
-    o.height_m = height_m;
-    if (std::isnan(ctx.dem.z(o.col, o.row))) {
-        char buf[256];
-        std::snprintf(buf, sizeof buf, "%s %.10g,%.10g lies on a no-data cell of %s", what.c_str(),
-                      x, y, ctx.dem.path.c_str());
-        throw InputError(buf);
-    }
-    o.latitude_deg = latitudeOf(ctx, {g.mapX(o.col), g.mapY(o.row)});
-    return o;
+    return placeObservers(ctx, {what}, {{x, y}}, {height_m}, {name}).front();
 }
 
 std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<std::string>& what,
@@ -328,6 +307,33 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
             points_dem->push_back(p);
     }
     return out;
+}
+
+PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const std::string& role,
+                          const std::string& unique_because) {
+    PlacedSites placed;
+    placed.rows = readSitesCsv(path);
+    std::map<std::string, int> line_of_name;
+    std::vector<std::string> what, names;
+    std::vector<MapPoint> given;
+    std::vector<double> heights;
+    for (const Site& site : placed.rows) {
+        const std::string where = path + ", line " + std::to_string(site.line);
+        if (!unique_because.empty()) {
+            auto [it, fresh] = line_of_name.emplace(site.name, site.line);
+            if (!fresh) {
+                throw InputError(where + ": the " + role + " name '" + site.name +
+                                 "' is already used on line " + std::to_string(it->second) + "; " +
+                                 unique_because);
+            }
+        }
+        what.push_back(where + ": " + role + " '" + site.name + "' at");
+        names.push_back(site.name);
+        given.push_back({site.x, site.y});
+        heights.push_back(site.height_m.value_or(ctx.observer_height_m));
+    }
+    placed.observers = placeObservers(ctx, what, given, heights, names, &placed.points_dem);
+    return placed;
 }
 
 RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,

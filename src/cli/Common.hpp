@@ -19,6 +19,7 @@
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/Dem.hpp"
 #include "lookfar/io/RasterWriter.hpp"
+#include "lookfar/io/SitesCsv.hpp"
 #include "lookfar/report/Summary.hpp"
 #include "lookfar/viewshed/Observer.hpp"
 
@@ -119,6 +120,17 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
                                      const std::vector<double>& heights_m,
                                      const std::vector<std::string>& names,
                                      std::vector<MapPoint>* points_dem = nullptr);
+/// The rows of a sites CSV placed on the DEM.
+struct PlacedSites {
+    std::vector<Site> rows;            ///< as read (name, x/y as given, height, line)
+    std::vector<Observer> observers;   ///< one per row; height = the row's or --observer-height
+    std::vector<MapPoint> points_dem;  ///< each row's point in the DEM's CRS
+};
+/// Reads a sites CSV (DESIGN.md) and places every row on the DEM. `role` names a row in
+/// messages ("site", "station", "candidate"). With `unique_because` non-empty, a repeated name is
+/// bad input naming both lines and the reason ("the matrix needs unique names").
+PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const std::string& role,
+                          const std::string& unique_because = "");
 /// Converts a point from --crs into the DEM's CRS.
 MapPoint toDemCrs(const RunContext& ctx, const MapPoint& p);
 /// Latitude (degrees) of a point given in the DEM's CRS.

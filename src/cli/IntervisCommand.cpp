@@ -59,30 +59,13 @@ void runIntervis(const IntervisState& s) {
     RunContext ctx = prepareRun("intervis", o, {s.matrix, s.lines}, {s.stations});
     ctx.run.method = "reference";
     ctx.run.extra["STATIONS"] = s.stations;
-    const std::vector<Site> sites = readSitesCsv(s.stations);
     const GridGeometry& g = ctx.dem.geometry;
 
     // Stations: names unique, inside the DEM and on data (exit 3 naming the file and line).
-    std::map<std::string, int> line_of_name;
-    std::vector<std::string> what, names;
-    std::vector<MapPoint> given;
-    std::vector<double> heights;
-    for (const Site& site : sites) {
-        const std::string where = s.stations + ", line " + std::to_string(site.line);
-        auto [it, fresh] = line_of_name.emplace(site.name, site.line);
-        if (!fresh) {
-            throw InputError(where + ": the station name '" + site.name +
-                             "' is already used on line " + std::to_string(it->second) +
-                             "; the matrix needs unique names");
-        }
-        what.push_back(where + ": station '" + site.name + "' at");
-        names.push_back(site.name);
-        given.push_back({site.x, site.y});
-        heights.push_back(site.height_m.value_or(ctx.observer_height_m));
-    }
-    std::vector<MapPoint> points;
-    const std::vector<Observer> stations =
-        placeObservers(ctx, what, given, heights, names, &points);
+    const PlacedSites placed =
+        placeSitesCsv(ctx, s.stations, "station", "the matrix needs unique names");
+    const std::vector<Observer>& stations = placed.observers;
+    const std::vector<MapPoint>& points = placed.points_dem;
     if (stations.size() < 2)
         throw InputError(s.stations + ": intervisibility needs at least two stations");
     const int n = static_cast<int>(stations.size());

@@ -113,30 +113,15 @@ void runSelect(const SelectState& s) {
     if (!s.weight.empty())
         inputs.push_back(s.weight);
     RunContext ctx = prepareRun("select", o, {s.output, s.csv}, inputs);
-    const std::vector<Site> sites = readSitesCsv(s.candidates);
+    const PlacedSites placed =
+        placeSitesCsv(ctx, s.candidates, "candidate", "the ranking needs unique names");
+    const std::vector<Site>& sites = placed.rows;
+    const std::vector<Observer>& candidates = placed.observers;
     const int n = static_cast<int>(sites.size());
     if (has_count && s.count > n) {
         throw UsageError("--count: " + std::to_string(s.count) + " is more than the " +
                          std::to_string(n) + " candidates in " + s.candidates);
     }
-    std::map<std::string, int> line_of_name;
-    std::vector<std::string> what, names;
-    std::vector<MapPoint> given;
-    std::vector<double> heights;
-    for (const Site& site : sites) {
-        const std::string where = s.candidates + ", line " + std::to_string(site.line);
-        auto [it, fresh] = line_of_name.emplace(site.name, site.line);
-        if (!fresh) {
-            throw InputError(where + ": the candidate name '" + site.name +
-                             "' is already used on line " + std::to_string(it->second) +
-                             "; the ranking needs unique names");
-        }
-        what.push_back(where + ": candidate '" + site.name + "' at");
-        names.push_back(site.name);
-        given.push_back({site.x, site.y});
-        heights.push_back(site.height_m.value_or(ctx.observer_height_m));
-    }
-    const std::vector<Observer> candidates = placeObservers(ctx, what, given, heights, names);
     Grid<float> weights;
     if (!s.weight.empty())
         weights = readWeights(ctx, s.weight);

@@ -124,14 +124,12 @@ void runViewshed(const ViewshedState& st) {
             placeObserver(ctx, "--observer", given.x, given.y, ctx.observer_height_m, st.name);
         placed.push_back(p);
     } else {
-        for (const Site& site : readSitesCsv(st.sites)) {
+        const PlacedSites rows = placeSitesCsv(ctx, st.sites, "site");
+        for (std::size_t i = 0; i < rows.rows.size(); ++i) {
             PlacedSite p;
-            p.x = site.x;
-            p.y = site.y;
-            const double h = site.height_m ? *site.height_m : ctx.observer_height_m;
-            const std::string what =
-                st.sites + ", line " + std::to_string(site.line) + ": site '" + site.name + "' at";
-            p.observer = placeObserver(ctx, what, site.x, site.y, h, site.name);
+            p.x = rows.rows[i].x;
+            p.y = rows.rows[i].y;
+            p.observer = rows.observers[i];
             placed.push_back(p);
         }
     }
