@@ -1,0 +1,132 @@
+#pragma once
+// Private to src/horizon: what the reference and the fast horizon engines share.
+//
+// Notation
+//   (c, r)      continuous cell coordinates; integers are cell centres
+//   e, n        east and north offsets between two cells, metres (the engines' fast distance)
+//   E_c, N_r    signed metres east per column step and north per row step at a row
+//   t           tangent of an elevation angle (rise over ground distance)
+#include <cmath>
+#include <cstdint>
+#include <limits>
+#include <vector>
+
+#include "lookfar/core/Grid.hpp"
+#include "lookfar/core/GridGeometry.hpp"
+#include "lookfar/earth/EarthModel.hpp"
+#include "lookfar/horizon/HorizonScan.hpp"
+
+namespace lookfar::horizon_detail {
+
+/// sin and cos of an azimuth in degrees, exact at multiples of 90°.
+void sinCosDeg(double azimuth_deg, double& s, double& c);
+
+/// The metric of a north-up grid as the engines use it. Projected grids: constant steps.
+/// Geographic grids: the mid-latitude formula of GridGeometry (north = M(φm) Δφ,
+/// east = N(φm) cos φm Δλ), with M(φ) and N(φ) cos φ tabulated every half row and interpolated
+/// linearly (relative error below 1e-9 for cells of a few arc-seconds).
+class GridMetric {
+  public:
+    explicit GridMetric(const GridGeometry& geometry);
+
+    bool geographic() const { return geographic_; }
+    /// Signed metres east per column step at (continuous) row `row`.
+    double eastPerCol(double row) const {
+        return geographic_ ? lookup(ncos_, row) * east_scale_ : east_scale_;
+    }
+    /// Signed metres north per row step at row `row`.
+    double northPerRow(double row) const {
+        return geographic_ ? lookup(m_, row) * north_scale_ : north_scale_;
+    }
+    /// Offsets (e, n) in metres from (c0, r0) to (c1, r1).
+    void offsets(double c0, double r0, double c1, double r1, double& e, double& n) const {
+        if (!geographic_) {
+            e = (c1 - c0) * east_scale_;
+            n = (r1 - r0) * north_scale_;
+            return;
+        }
+        double mid = 0.5 * (r0 + r1);
+        e = (c1 - c0) * lookup(ncos_, mid) * east_scale_;
+        n = (r1 - r0) * lookup(m_, mid) * north_scale_;
+    }
+
+  private:
+    double lookup(const std::vector<double>& table, double row) const {
+        double x = (row - row_first_) * 2.0;
+        if (x <= 0)
+            return table.front();
+        std::size_t i = static_cast<std::size_t>(x);
+        if (i + 1 >= table.size())
+            return table.back();
+        double f = x - static_cast<double>(i);
+        return table[i] + f * (table[i + 1] - table[i]);
+    }
+    bool geographic_ = false;
+    double east_scale_ = 1;   // projected: gt1 · unit; geographic: gt1 in radians
+    double north_scale_ = 1;  // projected: gt5 · unit; geographic: gt5 in radians
+    double row_first_ = -1;
+    std::vector<double> m_;     // M(φ) every half row from row_first_
+    std::vector<double> ncos_;  // N(φ) cos φ every half row
+};
+
+/// The exact ray of the reference engine from the centre of cell (c0, r0).
+struct RayResult {
+    bool found = false;
+    double t = -std::numeric_limits<double>::infinity();  // tangent of the horizon angle
+    double distance_m = 0;
+    double col = 0, row = 0;  // where the horizon-defining sample lies
+    double z = 0;             // its terrain height
+};
+
+/// Marches the ray at azimuth (sin_a, cos_a) from the centre of (c0, r0) with the eye at z_eye:
+/// every crossing of a column line and of a row line through cell centres, inside the grid and
+/// within reach, linearly interpolated between the two neighbouring centres; no-data samples
+/// are skipped. Ties go to the nearer sample. The direction in cell space uses the cell aspect
+/// of row r0.
+RayResult marchRay(const Grid<float>& dem, const GridMetric& metric, const Curvature& curvature,
+                   int c0, int r0, double z_eye, double sin_a, double cos_a, double reach_m);
+
+/// Per-cell accumulators of the sky-view factor and the dip over the directions.
+class SummaryAccumulator {
+  public:
+    SummaryAccumulator(int width, int height, bool want_svf, bool want_dip);
+    /// Adds direction results for cell index `i` (t = tangent of the angle; NaN = no data).
+    void add(std::size_t i, float angle_deg, double t) {
+        if (std::isnan(angle_deg))
+            return;
+        if (want_svf_) {
+            // sin(atan t) = t / √(1 + t²): no trigonometry per cell and direction.
+            if (t > 0)
+                svf_sum_[i] += static_cast<float>(t / std::sqrt(1.0 + t * t));
+            if (count_[i] < 0xFFFF)
+                ++count_[i];
+        }
+        if (want_dip_ && !(angle_deg >= min_angle_[i]))
+            min_angle_[i] = angle_deg;
+    }
+    /// Turns the sums into the summary grids (releases the accumulators).
+    HorizonSummary finish();
+
+  private:
+    int width_, height_;
+    bool want_svf_, want_dip_;
+    std::vector<float> svf_sum_;
+    std::vector<std::uint16_t> count_;
+    std::vector<float> min_angle_;
+};
+
+struct EngineInput {
+    const Grid<float>& dem;
+    const GridGeometry& geometry;
+    const GridMetric& metric;
+    const Curvature& curvature;
+    const HorizonOptions& options;
+};
+
+/// The engines: stream direction by direction to `sink`, accumulating the summary.
+void referenceScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
+                   Progress& progress);
+void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
+              Progress& progress);
+
+}  // namespace lookfar::horizon_detail
