@@ -157,6 +157,29 @@ void RasterWriter::writeRows(int band, int row0, int rows, const void* data) {
     }
 }
 
+void RasterWriter::writeWindow(int band, int col0, int row0, int width, int height,
+                               const void* data, int line_stride) {
+    if (!dataset_)
+        throw InternalError("write to a closed raster " + spec_.path);
+    GDALRasterBandH b = GDALGetRasterBand(static_cast<GDALDatasetH>(dataset_), band);
+    const GDALDataType type = gdalType(spec_.type);
+    const int bytes = GDALGetDataTypeSizeBytes(type);
+    if (GDALRasterIO(b, GF_Write, col0, row0, width, height, const_cast<void*>(data), width,
+                     height, type, bytes, line_stride * bytes) != CE_None) {
+        throw OutputError(spec_.path + ": writing failed (" + io_detail::lastGdalError() + ")");
+    }
+}
+
+void RasterWriter::flush() {
+    if (!dataset_)
+        return;
+    CPLErrorReset();
+    GDALFlushCache(static_cast<GDALDatasetH>(dataset_));
+    if (CPLGetLastErrorType() >= CE_Failure) {
+        throw OutputError(spec_.path + ": writing failed (" + io_detail::lastGdalError() + ")");
+    }
+}
+
 void RasterWriter::commit() {
     if (!dataset_)
         throw InternalError("commit of a closed raster " + spec_.path);

@@ -50,6 +50,14 @@ class RasterWriter {
     void writeRows(int band, int row0, int rows, const void* data);
     /// Writes a whole band.
     void writeBand(int band, const void* data) { writeRows(band, 0, spec_.height, data); }
+    /// Writes a `width` × `height` window of band `band` (1-based) whose top-left cell is
+    /// (col0, row0); value (c, r) of the window is data[r · line_stride + c], in elements of the
+    /// spec's pixel type.
+    void writeWindow(int band, int col0, int row0, int width, int height, const void* data,
+                     int line_stride);
+    /// Writes the blocks GDAL holds in its cache for this raster and drops them (keeps the
+    /// memory of a raster written piece by piece bounded).
+    void flush();
     /// Closes the file and renames it into place. Throws OutputError, or Interrupted when
     /// the run was interrupted (then nothing is renamed).
     void commit();
