@@ -1,14 +1,545 @@
-// lookfar horizon: placeholder registered until its engine lands (see the issue tracker).
+// lookfar horizon: the horizon of every cell in N directions (angles, distances, sky-view factor,
+// dip), streamed to GeoTIFFs; or the 360° horizon of one spot (--at) as a CSV, an SVG panorama
+// and a summary. A thin command: options → prepareRun → engine → write.
+#include <strings.h>
+
+#include <cmath>
+#include <cstdio>
+#include <limits>
+#include <memory>
+#include <string>
+#include <vector>
+
 #include "Commands.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/horizon/HorizonProfile.hpp"
+#include "lookfar/horizon/HorizonScan.hpp"
+#include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/report/SvgPlot.hpp"
+#include "lookfar/report/TextTable.hpp"
 
 namespace lookfar::cli {
 
+namespace {
+
+constexpr float kHorizonNoData = -9999.0f;  // DESIGN.md: horizon rasters use −9999
+
+struct HorizonState {
+    CommonOptions options;
+    std::string output, distance, svf, dip;
+    int directions = 32;
+    std::string at;
+    double step = 1.0;
+    std::string csv, plot;
+    CLI::Option* directions_opt = nullptr;
+    CLI::Option* step_opt = nullptr;
+};
+
+std::string fmt(const char* f, double v) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, f, v);
+    return buf;
+}
+std::string fmtg(double v) {
+    return fmt("%.10g", v);
+}
+std::string deg(double v, int decimals = 3) {
+    return std::isfinite(v) ? formatNumber(v, decimals) + "°" : "-";
+}
+std::string reachText(double reach_m) {
+    return std::isfinite(reach_m) ? formatDistance(reach_m) : "unlimited";
+}
+std::string azimuthText(double az) {
+    return fmt("%.3f", az) + "° clockwise from grid north";
+}
+
+/// Streams rectangles to the angle and distance rasters, NaN → −9999, with GDAL's cache flushed
+/// every few MiB so that memory stays bounded whatever N.
+class RasterSink final : public HorizonSink {
+  public:
+    RasterSink(RasterWriter* angle, RasterWriter* distance) : angle_(angle), distance_(distance) {}
+    bool wantsRectangles() const override { return angle_ || distance_; }
+    void rectangle(int index, int col0, int row0, int width, int height, int stride,
+                   const float* angle, const float* distance) override {
+        put(angle_, index, col0, row0, width, height, stride, angle);
+        put(distance_, index, col0, row0, width, height, stride, distance);
+        written_ += static_cast<std::size_t>(width) * height * 4;
+        if (written_ > kFlushBytes)
+            flush();
+    }
+    void endDirection(int) override { flush(); }
+
+  private:
+    static constexpr std::size_t kFlushBytes = 16u << 20;
+    void put(RasterWriter* w, int index, int col0, int row0, int width, int height, int stride,
+             const float* data) {
+        if (!w)
+            return;
+        buf_.resize(static_cast<std::size_t>(width) * height);
+        for (int r = 0; r < height; ++r) {
+            for (int c = 0; c < width; ++c) {
+                const float v = data[static_cast<std::size_t>(r) * stride + c];
+                buf_[static_cast<std::size_t>(r) * width + c] = std::isnan(v) ? kHorizonNoData : v;
+            }
+        }
+        w->writeWindow(index + 1, col0, row0, width, height, buf_.data(), width);
+    }
+    void flush() {
+        if (angle_)
+            angle_->flush();
+        if (distance_)
+            distance_->flush();
+        written_ = 0;
+    }
+    RasterWriter* angle_;
+    RasterWriter* distance_;
+    std::vector<float> buf_;
+    std::size_t written_ = 0;
+};
+
+/// Mean, smallest and largest of a grid's cells with data.
+struct GridStats {
+    std::int64_t cells = 0;
+    double mean = std::numeric_limits<double>::quiet_NaN();
+    double min = std::numeric_limits<double>::quiet_NaN();
+    double max = std::numeric_limits<double>::quiet_NaN();
+};
+GridStats gridStats(const Grid<float>& g) {
+    GridStats s;
+    double sum = 0;
+    for (float v : g.cells()) {
+        if (std::isnan(v))
+            continue;
+        ++s.cells;
+        sum += v;
+        if (!(v >= s.min))
+            s.min = v;
+        if (!(v <= s.max))
+            s.max = v;
+    }
+    if (s.cells)
+        s.mean = sum / s.cells;
+    return s;
+}
+nlohmann::json statsJson(const GridStats& s) {
+    return {{"cells_with_data", s.cells},
+            {"mean", finiteOrNull(s.mean)},
+            {"min", finiteOrNull(s.min)},
+            {"max", finiteOrNull(s.max)}};
+}
+
+double centreLatitude(const RunContext& ctx) {
+    const auto& g = ctx.dem.geometry;
+    return latitudeOf(ctx, {g.mapX((g.width() - 1) / 2.0), g.mapY((g.height() - 1) / 2.0)});
+}
+
+void describeEngine(RunContext& ctx, const HorizonOptions& o) {
+    ctx.run.extra["CURVATURE_LATITUDE_DEG"] = fmt("%.6f", o.latitude_deg);
+    if (o.method == HorizonMethod::Fast) {
+        ctx.run.extra["FAST_EXACT_STEPS"] = std::to_string(o.exact_steps);
+        ctx.run.extra["FAST_REFINE_STEPS"] = std::to_string(o.refine_steps);
+    }
+}
+
+void runGrid(const HorizonState& st) {
+    if (st.output.empty() && st.distance.empty() && st.svf.empty() && st.dip.empty()) {
+        throw UsageError(
+            "give at least one output: -o FILE (angles), --distance, --svf or --dip; or --at X,Y "
+            "for the horizon of one spot");
+    }
+    if (!st.csv.empty() || !st.plot.empty())
+        throw UsageError("--csv and --plot belong to the horizon of one spot: give --at X,Y");
+    if (st.step_opt->count())
+        throw UsageError("--step belongs to the horizon of one spot (--at); use --directions");
+    HorizonOptions opt;
+    opt.directions = st.directions;
+    if (opt.directions < 1 || opt.directions > kMaxHorizonDirections) {
+        throw UsageError("--directions: " + std::to_string(st.directions) +
+                         " is outside 1 to 3600");
+    }
+    RunContext ctx = prepareRun("horizon", st.options, {st.output, st.distance, st.svf, st.dip});
+    const int n = opt.directions;
+    opt.observer_height_m = ctx.observer_height_m;
+    opt.reach_m = ctx.reach_m;
+    opt.latitude_deg = centreLatitude(ctx);
+    opt.method = st.options.method == "reference" ? HorizonMethod::Reference : HorizonMethod::Fast;
+    opt.want_svf = !st.svf.empty();
+    opt.want_dip = !st.dip.empty();
+    ctx.run.extra["DIRECTIONS"] = std::to_string(n);
+    ctx.run.extra["AZIMUTHS"] = "band i (1-based) is azimuth (i - 1) * 360 / " + std::to_string(n) +
+                                " degrees clockwise from grid north, measured on the ground";
+    ctx.run.extra["NODATA"] = "-9999: no terrain sample with data in that direction within reach";
+    ctx.run.extra["COORDINATE_CRS"] = st.options.crs.empty() ? "the DEM's" : st.options.crs;
+    describeEngine(ctx, opt);
+
+    // Every raster goes to a temporary file and all are renamed into place at the end.
+    std::vector<std::unique_ptr<RasterWriter>> writers;
+    auto open = [&](const std::string& path, int bands, const std::string& what,
+                    const std::string& unit) -> RasterWriter* {
+        if (path.empty())
+            return nullptr;
+        RasterSpec spec = outputSpec(ctx, path, PixelType::Float32, bands, kHorizonNoData);
+        spec.unit_type = unit;
+        // Bands are written one direction after another: band-interleaved blocks are written
+        // once each (pixel interleaving would rewrite every block N times).
+        bool interleave_given = false;
+        for (const auto& co : spec.creation_options) {
+            if (co.size() >= 11 && strncasecmp(co.c_str(), "INTERLEAVE=", 11) == 0)
+                interleave_given = true;
+        }
+        if (bands > 1 && !interleave_given)
+            spec.creation_options.push_back("INTERLEAVE=BAND");
+        for (int i = 0; i < bands; ++i) {
+            spec.band_descriptions.push_back(
+                bands == 1 ? what : what + ", azimuth " + azimuthText(horizonAzimuthDeg(i, n)));
+        }
+        writers.push_back(std::make_unique<RasterWriter>(spec));
+        return writers.back().get();
+    };
+    RasterWriter* angle_w =
+        open(st.output, n, "horizon angle, degrees above the eye's local horizontal", "deg");
+    RasterWriter* dist_w =
+        open(st.distance, n, "ground distance to the horizon-defining terrain, metres", "m");
+    RasterWriter* svf_w =
+        open(st.svf, 1,
+             "sky-view factor, 1 - mean over the directions of sin(max(horizon angle, 0))", "");
+    RasterWriter* dip_w =
+        open(st.dip, 1,
+             "dip: largest depression of the horizon below the eye's local horizontal, degrees "
+             "(negative where the horizon is above it all round)",
+             "deg");
+
+    RasterSink sink(angle_w, dist_w);
+    HorizonSummary summary;
+    {
+        const HorizonScan scan(ctx.dem.z, ctx.dem.geometry, ctx.earth, opt);
+        summary = scan.run(sink, *ctx.progress);
+    }
+    ctx.dem.z = Grid<float>();  // the elevations are no longer needed
+
+    nlohmann::json j = summaryBase(ctx.run);
+    j["horizon"] = {{"directions", n},
+                    {"azimuth_step_deg", 360.0 / n},
+                    {"curvature_latitude_deg", opt.latitude_deg}};
+    j["outputs"] = nlohmann::json::object();
+    if (angle_w)
+        j["outputs"]["angle"] = st.output;
+    if (dist_w)
+        j["outputs"]["distance"] = st.distance;
+    TextTable t("Horizon of every cell of " + ctx.run.dem_path);
+    t.add("directions",
+          std::to_string(n) + ", every " + fmt("%.4g", 360.0 / n) + "° clockwise from grid north");
+    t.add("eye", formatNumber(ctx.observer_height_m, 2) + " m above the ground of each cell");
+    t.add("reach", reachText(ctx.reach_m));
+    t.add("earth", ctx.run.earth_model + ", refraction k = " + fmtg(ctx.run.refraction) +
+                       (ctx.earth.shape() == EarthShape::Flat
+                            ? ""
+                            : ", effective radius " + formatDistance(ctx.run.earth_radius_m /
+                                                                     (1.0 - ctx.run.refraction))));
+    t.add("method", st.options.method);
+    auto toNoData = [](Grid<float>& g) {
+        for (float& v : g.cells()) {
+            if (std::isnan(v))
+                v = kHorizonNoData;
+        }
+    };
+    if (svf_w) {
+        const GridStats s = gridStats(summary.svf);
+        j["outputs"]["svf"] = st.svf;
+        j["svf"] = statsJson(s);
+        t.add("sky-view factor", "mean " + formatNumber(s.mean, 4) + ", " + formatNumber(s.min, 4) +
+                                     " to " + formatNumber(s.max, 4));
+        toNoData(summary.svf);
+        svf_w->writeBand(1, summary.svf.data());
+        summary.svf = Grid<float>();
+    }
+    if (dip_w) {
+        const GridStats s = gridStats(summary.dip);
+        j["outputs"]["dip"] = st.dip;
+        j["dip_deg"] = statsJson(s);
+        t.add("dip", "mean " + deg(s.mean) + ", " + deg(s.min) + " to " + deg(s.max));
+        toNoData(summary.dip);
+        dip_w->writeBand(1, summary.dip.data());
+    }
+    t.add("outputs", [&] {
+        std::string o;
+        for (const auto& w : writers)
+            o += (o.empty() ? "" : ", ") + w->spec().path;
+        return o;
+    }());
+    for (auto& w : writers)
+        w->commit();
+    finishSummary(ctx, j, t.render());
+}
+
+// ---------------------------------------------------------------------------------------------
+
+std::string svgPanorama(const HorizonProfile& p, const std::string& title) {
+    // Vertical range: the terrain, the horizontal and the sea-horizon dip, with a margin.
+    double lo = -p.sea_horizon_dip_deg, hi = 0;
+    for (const auto& d : p.directions) {
+        if (!d.sample.found)
+            continue;
+        lo = std::fmin(lo, d.sample.angle_deg);
+        hi = std::fmax(hi, d.sample.angle_deg);
+    }
+    const double pad = std::fmax(0.15 * (hi - lo), 0.1);
+    const double y0 = lo - pad, y1 = hi + pad;
+    SvgPlot plot(1100, 440, 0, 360, y0, y1);
+    plot.title(title + " — terrain horizon filled");
+    plot.axes("azimuth, degrees clockwise from grid north",
+              "horizon angle, degrees above the eye's horizontal", 45, 0);
+    // Sky above, terrain below: each run of directions with data is one filled band down to the
+    // bottom of the plot; the last direction wraps to 360°.
+    SvgStyle ground;
+    ground.stroke = "#3d4f2f";
+    ground.fill = "#9aa77a";
+    ground.width = 1.2;
+    const int n = static_cast<int>(p.directions.size());
+    std::vector<double> xs, ys, base;
+    auto flushRun = [&] {
+        if (!xs.empty())
+            plot.band(xs, ys, base, ground);
+        xs.clear(), ys.clear(), base.clear();
+    };
+    for (int i = 0; i <= n; ++i) {
+        const auto& d = p.directions[i % n];
+        if (!d.sample.found) {
+            flushRun();
+            continue;
+        }
+        xs.push_back(i == n ? 360.0 : d.azimuth_deg);
+        ys.push_back(d.sample.angle_deg);
+        base.push_back(y0);
+    }
+    flushRun();
+    SvgStyle horizontal;
+    horizontal.stroke = "#202020";
+    horizontal.width = 1.0;
+    plot.hline(0.0, "eye's horizontal", horizontal);
+    if (p.sea_horizon_dip_deg > 0) {
+        SvgStyle sea;
+        sea.stroke = "#1f5fa8";
+        sea.width = 1.2;
+        sea.dash = "7 4";
+        plot.hline(-p.sea_horizon_dip_deg,
+                   "sea horizon for this eye: dip " + fmt("%.3f", p.sea_horizon_dip_deg) + "°",
+                   sea);
+    }
+    // Compass points along the top of the sky (the lines are labelled where they end).
+    static const char* const kPoints[] = {"N", "NE", "E", "SE", "S", "SW", "W", "NW", "N"};
+    for (int k = 0; k <= 8; ++k) {
+        const char* anchor = k == 0 ? "start" : (k == 8 ? "end" : "middle");
+        plot.text(45.0 * k, y1, kPoints[k], "#555555", anchor, k == 0 ? 4 : (k == 8 ? -4 : 0), 14);
+    }
+    if (std::isfinite(p.highest_angle_deg)) {
+        const bool right = p.highest_azimuth_deg > 270;
+        plot.marker(p.highest_azimuth_deg, p.highest_angle_deg, "", "#8c2d04");
+        plot.text(p.highest_azimuth_deg, p.highest_angle_deg,
+                  "highest " + fmt("%.2f", p.highest_angle_deg) + "° at " +
+                      formatDistance(p.highest_distance_m),
+                  "#8c2d04", right ? "end" : "start", right ? -8 : 8, -8);
+    }
+    return plot.render();
+}
+
+void runPoint(const HorizonState& st) {
+    if (!st.output.empty() || !st.distance.empty() || !st.svf.empty() || !st.dip.empty()) {
+        throw UsageError(
+            "--at gives the horizon of one spot (--csv, --plot, the summary); the rasters -o, "
+            "--distance, --svf and --dip are for every cell and cannot be combined with it");
+    }
+    if (st.directions_opt->count())
+        throw UsageError("--directions is for every cell; with --at give the step with --step");
+    if (!(st.step >= kMinHorizonStepDeg && st.step <= kMaxHorizonStepDeg)) {
+        throw UsageError("--step: " + fmt("%g", st.step) + "° is outside 0.05° to 90°");
+    }
+    const MapPoint given = parsePoint(st.at, "--at");
+    RunContext ctx = prepareRun("horizon", st.options, {st.csv, st.plot});
+    const Observer spot =
+        placeObserver(ctx, "--at", given.x, given.y, ctx.observer_height_m, "spot");
+    const GridGeometry& g = ctx.dem.geometry;
+    HorizonOptions opt;
+    opt.observer_height_m = ctx.observer_height_m;
+    opt.reach_m = ctx.reach_m;
+    opt.latitude_deg = spot.latitude_deg;
+    opt.method = HorizonMethod::Reference;
+    ctx.run.method = "reference";
+    ctx.run.extra["AT"] = fmtg(given.x) + "," + fmtg(given.y);
+    ctx.run.extra["STEP_DEG"] = fmtg(st.step);
+    const HorizonProfile p =
+        horizonProfile(ctx.dem.z, g, ctx.earth, spot.col, spot.row, st.step, opt);
+
+    // Horizon points back in the coordinates of --at.
+    std::unique_ptr<CoordinateTransform> back;
+    if (!st.options.crs.empty())
+        back = std::make_unique<CoordinateTransform>(ctx.dem.crs.wkt, st.options.crs);
+    auto toUser = [&](double col, double row) {
+        MapPoint m{g.mapX(col), g.mapY(row)};
+        return back ? back->apply(m) : m;
+    };
+    const MapPoint cell = toUser(spot.col, spot.row);
+
+    nlohmann::json j = summaryBase(ctx.run);
+    nlohmann::json sectors = nlohmann::json::array();
+    std::string sector_text;
+    const bool all_round = p.open_sectors.size() == 1 && p.open_sectors[0].width_deg >= 360.0;
+    for (const auto& s : p.open_sectors) {
+        sectors.push_back(
+            {{"from_deg", s.from_deg}, {"to_deg", s.to_deg}, {"width_deg", s.width_deg}});
+        sector_text += (sector_text.empty() ? "" : "; ") + fmt("%.1f", s.from_deg) + "° to " +
+                       fmt("%.1f", s.to_deg) + "° clockwise (" + fmt("%.4g", s.width_deg) +
+                       "° wide)";
+    }
+    j["spot"] = {{"x", given.x},           {"y", given.y},     {"col", spot.col},
+                 {"row", spot.row},        {"cell_x", cell.x}, {"cell_y", cell.y},
+                 {"ground_m", p.ground_m}, {"eye_m", p.eye_m}};
+    j["horizon"] = {{"step_deg", st.step},
+                    {"directions", p.directions.size()},
+                    {"directions_with_data", p.directions_with_data},
+                    {"lowest",
+                     {{"angle_deg", finiteOrNull(p.lowest_angle_deg)},
+                      {"azimuth_deg", finiteOrNull(p.lowest_azimuth_deg)},
+                      {"distance_m", finiteOrNull(p.lowest_distance_m)}}},
+                    {"highest",
+                     {{"angle_deg", finiteOrNull(p.highest_angle_deg)},
+                      {"azimuth_deg", finiteOrNull(p.highest_azimuth_deg)},
+                      {"distance_m", finiteOrNull(p.highest_distance_m)}}},
+                    {"mean_angle_deg", finiteOrNull(p.mean_angle_deg)},
+                    {"sky_view_factor", finiteOrNull(p.sky_view_factor)},
+                    {"dip_deg", finiteOrNull(p.dip_deg)},
+                    {"open_sectors", sectors},
+                    {"sea_horizon_dip_deg", p.sea_horizon_dip_deg},
+                    {"sea_horizon_distance_m", finiteOrNull(p.sea_horizon_distance_m)}};
+    if (!st.csv.empty())
+        j["outputs"]["csv"] = st.csv;
+    if (!st.plot.empty())
+        j["outputs"]["plot"] = st.plot;
+
+    TextTable t("Horizon at " + fmtg(given.x) + ", " + fmtg(given.y) + " on " + ctx.run.dem_path);
+    t.add("cell", std::to_string(spot.col) + ", " + std::to_string(spot.row) + " (centre " +
+                      fmtg(cell.x) + ", " + fmtg(cell.y) + ")");
+    t.add("ground", formatNumber(p.ground_m, 2) + " m");
+    t.add("eye", formatNumber(p.eye_m, 2) + " m (" + formatNumber(ctx.observer_height_m, 2) +
+                     " m above the ground)");
+    t.add("directions", std::to_string(p.directions.size()) + " every " + fmtg(st.step) + "°, " +
+                            std::to_string(p.directions_with_data) + " with terrain");
+    t.add("reach", reachText(ctx.reach_m));
+    t.add("lowest horizon",
+          deg(p.lowest_angle_deg) + " at azimuth " + deg(p.lowest_azimuth_deg, 1) + ", " +
+              (std::isfinite(p.lowest_distance_m) ? formatDistance(p.lowest_distance_m) : "-"));
+    t.add("highest horizon",
+          deg(p.highest_angle_deg) + " at azimuth " + deg(p.highest_azimuth_deg, 1) + ", " +
+              (std::isfinite(p.highest_distance_m) ? formatDistance(p.highest_distance_m) : "-"));
+    t.add("mean horizon angle", deg(p.mean_angle_deg));
+    if (all_round)
+        sector_text = "all round (360°)";
+    t.add("open sectors", sector_text.empty() ? "none (the horizon is at or above the eye's "
+                                                "horizontal in every direction)"
+                                              : sector_text + " (horizon below the horizontal)");
+    t.add("sky-view factor",
+          std::isfinite(p.sky_view_factor) ? formatNumber(p.sky_view_factor, 4) : "-");
+    t.add("dip", deg(p.dip_deg) + " (largest depression of the terrain horizon)");
+    t.add("sea-horizon dip",
+          deg(p.sea_horizon_dip_deg) + " for an eye " + formatNumber(p.eye_m, 1) +
+              " m above the datum" +
+              (p.sea_horizon_dip_deg > 0
+                   ? ", sea horizon at " + formatDistance(p.sea_horizon_distance_m)
+                   : ""));
+    t.add("earth", ctx.run.earth_model + ", refraction k = " + fmtg(ctx.run.refraction));
+
+    if (!st.csv.empty()) {
+        std::string csv = "azimuth_deg,angle_deg,distance_m,x,y,elevation_m\n";
+        for (const auto& d : p.directions) {
+            csv += fmt("%.4f", d.azimuth_deg);
+            if (d.sample.found) {
+                const MapPoint m = toUser(d.sample.col, d.sample.row);
+                csv += "," + fmt("%.6f", d.sample.angle_deg) + "," +
+                       fmt("%.3f", d.sample.distance_m) + "," + fmtg(m.x) + "," + fmtg(m.y) + "," +
+                       fmt("%.3f", d.sample.elevation_m);
+            } else {
+                csv += ",,,,,";
+            }
+            csv += "\n";
+        }
+        writeTextFile(st.csv, csv);
+    }
+    if (!st.plot.empty()) {
+        writeTextFile(st.plot,
+                      svgPanorama(p, "Horizon from " + fmtg(given.x) + ", " + fmtg(given.y) +
+                                         " (eye " + formatNumber(p.eye_m, 1) + " m)"));
+    }
+    finishSummary(ctx, j, t.render());
+}
+
+void runHorizon(const HorizonState& st) {
+    if (st.at.empty())
+        runGrid(st);
+    else
+        runPoint(st);
+}
+
+}  // namespace
+
 Command addHorizonCommand(CLI::App& root) {
-    auto state = std::make_shared<CommonOptions>();
-    CLI::App* app = root.add_subcommand("horizon", "(not available yet)");
-    addCommonOptions(app, *state);
-    return {app, [] { throw InternalError("'horizon' is not available in this build yet"); }};
+    auto state = std::make_shared<HorizonState>();
+    CLI::App* app = root.add_subcommand(
+        "horizon",
+        "the horizon of every cell in N directions (angles, distances, sky-view factor, dip), or "
+        "the 360° horizon of one spot (--at) with a CSV, an SVG panorama and a summary");
+    addCommonOptions(app, state->options, kAllCommon);
+    // A horizon has no target: the option would do nothing.
+    app->remove_option(app->get_option("--target-height"));
+    app->get_option("--method")
+        ->description(
+            "engine for the rasters: fast (default: scan lines find the horizon, the cell's own "
+            "ray is sampled exactly there), or reference (every ray marched cell by cell; slow). "
+            "--at always uses the reference");
+    app->add_option("-o,--output", state->output,
+                    "Float32 raster of N bands: band i is the horizon angle at azimuth "
+                    "i*360/N, degrees above the eye's horizontal; -9999 no data")
+        ->group("Every cell");
+    state->directions_opt =
+        app->add_option("--directions", state->directions,
+                        "N, the number of azimuths i*360/N clockwise from grid north, 1 to 3600")
+            ->capture_default_str()
+            ->group("Every cell");
+    app->add_option("--distance", state->distance,
+                    "Float32 raster of N bands: ground distance to the horizon, metres")
+        ->group("Every cell");
+    app->add_option("--svf", state->svf,
+                    "Float32 raster: sky-view factor, 1 - mean over the directions of "
+                    "sin(max(angle, 0))")
+        ->group("Every cell");
+    app->add_option("--dip", state->dip,
+                    "Float32 raster: largest depression of the horizon below the eye's "
+                    "horizontal over the directions, degrees (negative: above it all round)")
+        ->group("Every cell");
+    app->add_option("--at", state->at,
+                    "X,Y in --crs: the 360° horizon of the cell that holds this point")
+        ->group("One spot");
+    state->step_opt =
+        app->add_option("--step", state->step, "azimuth step of --at, degrees, 0.05 to 90")
+            ->capture_default_str()
+            ->group("One spot");
+    app->add_option("--csv", state->csv,
+                    "CSV of the horizon of --at: azimuth_deg,angle_deg,distance_m,x,y,"
+                    "elevation_m (x, y of the horizon point in --crs)")
+        ->group("One spot");
+    app->add_option("--plot", state->plot,
+                    "SVG panorama of the horizon of --at with the eye's horizontal and the "
+                    "sea-horizon dip")
+        ->group("One spot");
+    app->footer(
+        "\nEvery cell: the eye stands at the cell's centre, --observer-height above its ground.\n"
+        "  A direction with no terrain sample with data inside the DEM within reach is -9999 in\n"
+        "  that band and is left out of the sky-view factor and the dip. Output is streamed\n"
+        "  direction by direction: memory does not grow with N.\n"
+        "One spot (--at): the horizon every --step degrees, the lowest and highest horizon, the\n"
+        "  sectors where the horizon is below the horizontal, the mean angle, the sky-view factor\n"
+        "  and the dip of the sea horizon for the eye's height.\n" +
+        conventionsText() + cautionText());
+    return {app, [state] { runHorizon(*state); }};
 }
 
 }  // namespace lookfar::cli

@@ -1,0 +1,338 @@
+// `lookfar horizon` run on the built binary: outside values through the whole tool (REFERENCES.md
+// rows in the comments), the layout of its outputs, and the bad-input rules of DESIGN.md.
+#include <gdal.h>
+#include <gtest/gtest.h>
+
+#include <nlohmann/json.hpp>
+
+#include <cmath>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "../support/CliRunner.hpp"
+
+using namespace lookfar::testing;
+
+namespace {
+
+constexpr double kMetresPerNmi = 1852.0;
+constexpr double kPi = 3.14159265358979323846;
+const char* const kSeaCentre = "425025,5624975";  // centre of flat_sea.tif's middle cell
+
+nlohmann::json runJson(const std::vector<std::string>& args) {
+    std::vector<std::string> a = args;
+    a.push_back("--json");
+    a.push_back("--quiet");
+    CliResult r = runLookfar(a);
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    if (r.exit_code != 0)
+        return nlohmann::json::object();
+    return nlohmann::json::parse(r.out);
+}
+
+struct Raster {
+    int width = 0, height = 0, bands = 0;
+    std::vector<std::vector<float>> values;  ///< per band
+    std::vector<std::string> descriptions;
+    std::vector<std::string> units;
+    double nodata = 0;
+    float at(int band, int c, int r) const {
+        return values[band][static_cast<std::size_t>(r) * width + c];
+    }
+};
+
+Raster readRaster(const std::string& path) {
+    GDALAllRegister();
+    Raster out;
+    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
+    EXPECT_NE(ds, nullptr) << path;
+    if (!ds)
+        return out;
+    out.width = GDALGetRasterXSize(ds);
+    out.height = GDALGetRasterYSize(ds);
+    out.bands = GDALGetRasterCount(ds);
+    for (int b = 1; b <= out.bands; ++b) {
+        GDALRasterBandH band = GDALGetRasterBand(ds, b);
+        std::vector<float> v(static_cast<std::size_t>(out.width) * out.height);
+        EXPECT_EQ(GDALRasterIO(band, GF_Read, 0, 0, out.width, out.height, v.data(), out.width,
+                               out.height, GDT_Float32, 0, 0),
+                  CE_None);
+        out.values.push_back(std::move(v));
+        out.descriptions.push_back(GDALGetDescription(band));
+        out.units.push_back(GDALGetRasterUnitType(band));
+        out.nodata = GDALGetRasterNoDataValue(band, nullptr);
+    }
+    GDALClose(ds);
+    return out;
+}
+
+std::string metadataItem(const std::string& path, const std::string& key) {
+    GDALAllRegister();
+    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
+    if (!ds)
+        return "";
+    const char* v = GDALGetMetadataItem(ds, key.c_str(), nullptr);
+    std::string out = v ? v : "";
+    GDALClose(ds);
+    return out;
+}
+
+std::vector<std::vector<std::string>> readCsv(const std::string& path) {
+    std::vector<std::vector<std::string>> rows;
+    std::ifstream in(path);
+    std::string line;
+    while (std::getline(in, line)) {
+        std::vector<std::string> cells;
+        std::stringstream ss(line);
+        std::string cell;
+        while (std::getline(ss, cell, ','))
+            cells.push_back(cell);
+        if (!line.empty() && line.back() == ',')
+            cells.push_back("");
+        rows.push_back(cells);
+    }
+    return rows;
+}
+
+}  // namespace
+
+// REFERENCES.md row 1: Bowditch (NGA Pub. 9), "Distance of the horizon", D(nmi) = 1.17 √h(ft),
+// reproduced by k ≈ 0.17 (from memory; tolerance 1 %). flat_sea.tif is 0 m everywhere; from
+// 100 ft the sea horizon (21.7 km) lies inside the grid in every direction.
+TEST(HorizonCliTest, FlatSeaHorizonDistanceMatchesBowditch) {
+    ScratchDir dir;
+    const std::string csv = dir.file("sea.csv");
+    nlohmann::json j = runJson({"horizon", testRaster("flat_sea.tif"), "--at", kSeaCentre,
+                                "--observer-height", "100ft", "--refraction", "0.17",
+                                "--earth-model", "sphere", "--step", "45", "--csv", csv});
+    const double bowditch_m = 1.17 * std::sqrt(100.0) * kMetresPerNmi;
+    const auto rows = readCsv(csv);
+    ASSERT_EQ(rows.size(), 9u);  // header + 8 directions
+    EXPECT_EQ(rows[0], (std::vector<std::string>{"azimuth_deg", "angle_deg", "distance_m", "x", "y",
+                                                 "elevation_m"}));
+    for (std::size_t i = 1; i < rows.size(); ++i) {
+        ASSERT_EQ(rows[i].size(), 6u);
+        const double d = std::stod(rows[i][2]);
+        EXPECT_NEAR(d, bowditch_m, 0.01 * bowditch_m) << rows[i][0];
+        // The horizon point lies that far from the spot, in the row's azimuth, on the sea.
+        const double az = std::stod(rows[i][0]) * kPi / 180.0;
+        EXPECT_NEAR(std::stod(rows[i][3]), 425025 + d * std::sin(az), 1.0) << rows[i][0];
+        EXPECT_NEAR(std::stod(rows[i][4]), 5624975 + d * std::cos(az), 1.0) << rows[i][0];
+        EXPECT_EQ(std::stod(rows[i][5]), 0.0);
+    }
+    EXPECT_NEAR(j["horizon"]["sea_horizon_distance_m"].get<double>(), bowditch_m,
+                0.01 * bowditch_m);
+}
+
+// REFERENCES.md row 2: The Nautical Almanac, dip D(′) = 1.76 √h(m), reproduced by k ≈ 0.165
+// (from memory; tolerance 1 %): the terrain horizon of a flat sea lies that far below the eye's
+// horizontal all round, and the summary's sea-horizon dip (exact sphere formula) agrees.
+TEST(HorizonCliTest, FlatSeaDipMatchesNauticalAlmanac) {
+    ScratchDir dir;
+    nlohmann::json j =
+        runJson({"horizon", testRaster("flat_sea.tif"), "--at", kSeaCentre, "--observer-height",
+                 "30", "--refraction", "0.165", "--earth-model", "sphere", "--step", "30"});
+    const double almanac_deg = 1.76 * std::sqrt(30.0) / 60.0;
+    EXPECT_NEAR(j["horizon"]["dip_deg"].get<double>(), almanac_deg, 0.01 * almanac_deg);
+    EXPECT_NEAR(j["horizon"]["sea_horizon_dip_deg"].get<double>(), almanac_deg, 0.01 * almanac_deg);
+    EXPECT_NEAR(j["horizon"]["highest"]["angle_deg"].get<double>(), -almanac_deg,
+                0.01 * almanac_deg);
+    ASSERT_EQ(j["horizon"]["open_sectors"].size(), 1u);
+    EXPECT_DOUBLE_EQ(j["horizon"]["open_sectors"][0]["width_deg"].get<double>(), 360.0);
+    EXPECT_DOUBLE_EQ(j["horizon"]["sky_view_factor"].get<double>(), 1.0);
+    EXPECT_EQ(j["horizon"]["directions"], 12);
+}
+
+// REFERENCES.md row 12: Zakšek, Oštir & Kokalj (2011), SVF = 1 − (1/n) Σ sin γᵢ; on the floor of
+// v_valley.tif (side slopes β = 30°, eye on the ground, flat Earth) γ(θ) = atan(tan β |sin θ|).
+TEST(HorizonCliTest, VValleySkyViewFactorRaster) {
+    ScratchDir dir;
+    const std::string svf = dir.file("svf.tif");
+    runJson({"horizon", testRaster("v_valley.tif"), "--svf", svf, "--directions", "16",
+             "--observer-height", "0", "--earth-model", "flat"});
+    double sum = 0;
+    for (int i = 0; i < 16; ++i)
+        sum += std::sin(std::atan(std::tan(kPi / 6) * std::fabs(std::sin(2 * kPi * i / 16))));
+    const Raster r = readRaster(svf);
+    ASSERT_EQ(r.bands, 1);
+    EXPECT_NEAR(r.at(0, 150, 150), 1.0 - sum / 16, 1e-5);
+    EXPECT_NEAR(r.at(0, 150, 20), 1.0 - sum / 16, 1e-5);  // anywhere along the floor
+}
+
+// DESIGN.md outputs: N bands with the azimuth in their description, −9999 no data, metadata with
+// every parameter; the sky-view factor and dip rasters have one band.
+TEST(HorizonCliTest, RastersHaveOneBandPerDirectionWithItsAzimuth) {
+    ScratchDir dir;
+    const std::string angle = dir.file("h.tif"), dist = dir.file("d.tif"),
+                      svf = dir.file("svf.tif"), dip = dir.file("dip.tif");
+    nlohmann::json j = runJson({"horizon", testRaster("demo_coast.tif"), "-o", angle, "--distance",
+                                dist, "--svf", svf, "--dip", dip, "--directions", "8"});
+    const Raster a = readRaster(angle), d = readRaster(dist), s = readRaster(svf),
+                 p = readRaster(dip);
+    ASSERT_EQ(a.bands, 8);
+    ASSERT_EQ(d.bands, 8);
+    EXPECT_EQ(s.bands, 1);
+    EXPECT_EQ(p.bands, 1);
+    EXPECT_EQ(a.width, 500);
+    EXPECT_EQ(a.height, 400);
+    EXPECT_DOUBLE_EQ(a.nodata, -9999.0);
+    EXPECT_DOUBLE_EQ(s.nodata, -9999.0);
+    EXPECT_NE(a.descriptions[1].find("azimuth 45.000° clockwise from grid north"),
+              std::string::npos)
+        << a.descriptions[1];
+    EXPECT_NE(d.descriptions[7].find("azimuth 315.000°"), std::string::npos);
+    EXPECT_EQ(a.units[0], "deg");
+    EXPECT_EQ(d.units[0], "m");
+    EXPECT_EQ(metadataItem(angle, "LOOKFAR_DIRECTIONS"), "8");
+    EXPECT_EQ(metadataItem(dip, "LOOKFAR_COMMAND"), "horizon");
+    EXPECT_EQ(metadataItem(svf, "LOOKFAR_REFRACTION"), "0.13");
+    EXPECT_FALSE(metadataItem(angle, "LOOKFAR_CURVATURE_LATITUDE_DEG").empty());
+    // The top-left cell has no terrain to its north (band 1) or west (band 7).
+    EXPECT_EQ(a.at(0, 0, 0), -9999.0f);
+    EXPECT_EQ(a.at(6, 0, 0), -9999.0f);
+    EXPECT_EQ(d.at(0, 0, 0), -9999.0f);
+    EXPECT_NE(a.at(2, 0, 0), -9999.0f);
+    // Sky-view factors lie in [0, 1]; the dip is the largest depression over the bands.
+    for (int r = 0; r < 400; r += 37) {
+        for (int c = 0; c < 500; c += 41) {
+            EXPECT_GE(s.at(0, c, r), 0.0f);
+            EXPECT_LE(s.at(0, c, r), 1.0f);
+            float lowest = 90;
+            for (int b = 0; b < 8; ++b) {
+                if (a.at(b, c, r) != -9999.0f)
+                    lowest = std::fmin(lowest, a.at(b, c, r));
+            }
+            EXPECT_FLOAT_EQ(p.at(0, c, r), -lowest) << c << "," << r;
+        }
+    }
+    EXPECT_EQ(j["horizon"]["directions"], 8);
+    EXPECT_GT(j["svf"]["mean"].get<double>(), 0.5);
+}
+
+// DESIGN.md: results are identical for any --threads, for both engines.
+TEST(HorizonCliTest, IdenticalRastersForOneAndTwoThreads) {
+    ScratchDir dir;
+    for (std::string method : {"fast", "reference"}) {
+        const std::string n = method == "fast" ? "8" : "2";
+        const std::string one = dir.file(method + "1.tif"), two = dir.file(method + "2.tif");
+        runJson({"horizon", testRaster("geographic_hills.tif"), "-o", one, "--directions", n,
+                 "--method", method, "--threads", "1"});
+        runJson({"horizon", testRaster("geographic_hills.tif"), "-o", two, "--directions", n,
+                 "--method", method, "--threads", "2"});
+        const Raster a = readRaster(one), b = readRaster(two);
+        ASSERT_EQ(a.bands, b.bands);
+        for (int i = 0; i < a.bands; ++i)
+            EXPECT_EQ(a.values[i], b.values[i]) << method << " band " << i;
+    }
+}
+
+// The panorama: an SVG with the terrain horizon filled, the eye's horizontal and the sea-horizon
+// dip drawn as reference lines, and labelled axes.
+TEST(HorizonCliTest, PanoramaShowsTerrainAndReferenceLines) {
+    ScratchDir dir;
+    const std::string svg = dir.file("p.svg");
+    runJson({"horizon", testRaster("demo_coast.tif"), "--at", "422937.5,5598337.5", "--plot", svg});
+    const std::string s = readFile(svg);
+    EXPECT_EQ(s.rfind("<?xml", 0), 0u);
+    EXPECT_NE(s.find("<polygon"), std::string::npos);
+    EXPECT_NE(s.find("eye's horizontal"), std::string::npos);
+    EXPECT_NE(s.find("sea horizon for this eye: dip"), std::string::npos);
+    EXPECT_NE(s.find("azimuth, degrees clockwise from grid north"), std::string::npos);
+    EXPECT_NE(s.find("horizon angle, degrees"), std::string::npos);
+    EXPECT_NE(s.find(">NE<"), std::string::npos);
+}
+
+// A geographic DEM and --crs: the spot and the CSV's horizon points are in the --crs coordinates.
+TEST(HorizonCliTest, GeographicDemAndCoordinatesInAnotherCrs) {
+    ScratchDir dir;
+    const std::string csv = dir.file("h.csv");
+    nlohmann::json j = runJson({"horizon", lookfar::testing::usgsSample(), "--crs", "EPSG:32616",
+                                "--at", "746000,4052900", "--step", "10", "--csv", csv});
+    EXPECT_EQ(j["horizon"]["directions"], 36);
+    EXPECT_EQ(j["horizon"]["directions_with_data"], 36);
+    const auto rows = readCsv(csv);
+    ASSERT_EQ(rows.size(), 37u);
+    for (std::size_t i = 1; i < rows.size(); ++i) {
+        EXPECT_NEAR(std::stod(rows[i][3]), 746000, 40000) << rows[i][0];  // UTM 16N metres
+        EXPECT_NEAR(std::stod(rows[i][4]), 4052900, 40000) << rows[i][0];
+    }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Bad input (DESIGN.md exit codes): one clear sentence, the right code, no output left behind.
+
+namespace {
+void expectRefused(const std::vector<std::string>& args, int code, const std::string& needle,
+                   const ScratchDir& dir) {
+    CliResult r = runLookfar(args);
+    EXPECT_EQ(r.exit_code, code) << r.err;
+    EXPECT_NE(firstLine(r.err).find(needle), std::string::npos) << r.err;
+    EXPECT_TRUE(dir.entries().empty()) << "left behind: " << dir.entries().front();
+}
+}  // namespace
+
+TEST(HorizonBadInputTest, DirectionsOutsideOneTo3600) {
+    ScratchDir dir;
+    for (const char* n : {"0", "3601", "-4"}) {
+        expectRefused(
+            {"horizon", testRaster("wall.tif"), "-o", dir.file("h.tif"), "--directions", n}, 2,
+            "--directions", dir);
+    }
+}
+
+TEST(HorizonBadInputTest, StepOutsideRange) {
+    ScratchDir dir;
+    for (const char* s : {"0", "-1", "90.5", "0.01", "nan"}) {
+        expectRefused({"horizon", testRaster("wall.tif"), "--at", "431005,5589005", "--csv",
+                       dir.file("h.csv"), "--step", s},
+                      2, "--step", dir);
+    }
+}
+
+TEST(HorizonBadInputTest, ReachMustBePositive) {
+    ScratchDir dir;
+    expectRefused({"horizon", testRaster("wall.tif"), "-o", dir.file("h.tif"), "--reach", "0"}, 2,
+                  "--reach", dir);
+}
+
+TEST(HorizonBadInputTest, SpotOutsideTheDemOrOnNoData) {
+    ScratchDir dir;
+    expectRefused({"horizon", testRaster("wall.tif"), "--at", "1,2", "--csv", dir.file("h.csv"),
+                   "--plot", dir.file("h.svg")},
+                  3, "outside the DEM", dir);
+    // nodata_hole.tif: cells 45–54 in both directions hold no data.
+    expectRefused({"horizon", testRaster("nodata_hole.tif"), "--at", "430505,5589495", "--csv",
+                   dir.file("h.csv")},
+                  3, "no-data", dir);
+}
+
+TEST(HorizonBadInputTest, ModesDoNotMix) {
+    ScratchDir dir;
+    expectRefused(
+        {"horizon", testRaster("wall.tif"), "--at", "431005,5589005", "-o", dir.file("h.tif")}, 2,
+        "--at", dir);
+    expectRefused({"horizon", testRaster("wall.tif"), "--csv", dir.file("h.csv")}, 2, "--at", dir);
+    expectRefused({"horizon", testRaster("wall.tif")}, 2, "output", dir);
+    expectRefused(
+        {"horizon", testRaster("wall.tif"), "--at", "431005,5589005", "--directions", "8"}, 2,
+        "--directions", dir);
+    expectRefused(
+        {"horizon", testRaster("wall.tif"), "--target-height", "2", "-o", dir.file("h.tif")}, 2,
+        "target-height", dir);
+}
+
+TEST(HorizonBadInputTest, MissingDemAndExistingOutput) {
+    ScratchDir dir;
+    expectRefused({"horizon", "/no/such/dem.tif", "-o", dir.file("h.tif")}, 3, "/no/such/dem.tif",
+                  dir);
+    const std::string out = dir.file("h.tif");
+    std::ofstream(out) << "keep me";
+    CliResult r =
+        runLookfar({"horizon", testRaster("wall.tif"), "-o", out, "--svf", dir.file("svf.tif")});
+    EXPECT_EQ(r.exit_code, 4) << r.err;
+    EXPECT_NE(firstLine(r.err).find("--overwrite"), std::string::npos) << r.err;
+    EXPECT_EQ(readFile(out), "keep me");
+    EXPECT_EQ(dir.entries().size(), 1u);  // no svf.tif, no temporary files
+}
