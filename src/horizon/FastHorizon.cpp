@@ -311,27 +311,34 @@ struct Tiles {
 struct LineBuf {
     long j = 0;
     int a_lo = 0, a_hi = -1, n = 0;
-    double* Z = nullptr;    // folded heights (NaN = no data); raw heights until folded
-    double* S = nullptr;    // geographic: coordinate along the line, metres
-    float* g_up = nullptr;  // ground of the cell on the line's upper side (minor q)
-    float* g_dn = nullptr;  // ground of the cell on its lower side (q − 1; NaN when g_a = 0)
+    double* Z = nullptr;     // folded heights (NaN = no data); raw heights until folded
+    double* S = nullptr;     // geographic: coordinate along the line, metres
+    float* g_up = nullptr;   // ground of the cell on the line's upper side (minor q)
+    float* g_dn = nullptr;   // ground of the cell on its lower side (q − 1; NaN when g_a = 0)
+    int* cand_up = nullptr;  // tangent point (major steps from the eye) for the upper-side cell
+    int* cand_dn = nullptr;  // … for the lower-side cell (−1: none)
     int k(int a, int sign) const { return sign > 0 ? a_hi - a : a - a_lo; }
     bool has(int a) const { return a >= a_lo && a <= a_hi; }
+};
+
+/// A hull vertex: a sample's coordinate along the line, its folded height and its index.
+struct Vertex {
+    double s, z;
+    int k;
 };
 
 /// A thread's scratch buffers.
 struct Scratch {
     std::vector<double> z, s;
     std::vector<float> gu, gd;
-    std::vector<int> cand[4];  // tangent points (major steps) for the upper / lower side cells
-    std::vector<int> back, front, grave, record;
+    std::vector<int> up, dn;
+    std::vector<Vertex> back, front, grave;
+    std::vector<int> record;
     LineBuf lines[kGroupLines + 1];
     void reserve(int len) {
         const std::size_t n = static_cast<std::size_t>(len) * (kGroupLines + 1);
         if (z.size() < n) {
-            z.resize(n), s.resize(n), gu.resize(n), gd.resize(n);
-            for (auto& c : cand)
-                c.resize(len + 1);
+            z.resize(n), s.resize(n), gu.resize(n), gd.resize(n), up.resize(n), dn.resize(n);
             back.resize(len + 1), front.resize(len + 1), grave.resize(len + 1);
             record.resize(len + 1);
         }
@@ -341,6 +348,8 @@ struct Scratch {
             lines[i].S = s.data() + off;
             lines[i].g_up = gu.data() + off;
             lines[i].g_dn = gd.data() + off;
+            lines[i].cand_up = up.data() + off;
+            lines[i].cand_dn = dn.data() + off;
         }
     }
 };
@@ -406,15 +415,9 @@ class GroupWorker {
         if (u_lo > u_hi)
             return;
         gather(sc, u_lo, u_hi);
-        // Line by line; the cells between line i − 1 and line i are finished as soon as both
-        // have been swept.
-        for (int i = 0; i <= kGroupLines; ++i) {
-            int* up = sc.cand[2 * (i & 1)].data();
-            int* dn = sc.cand[2 * (i & 1) + 1].data();
-            sweep(sc.lines[i], up, dn, sc);
-            if (i > 0)
-                finishPair(sc.lines[i - 1], sc.cand[2 * ((i - 1) & 1)].data(), sc.lines[i], dn);
-        }
+        for (int i = 0; i <= kGroupLines; ++i)
+            sweep(sc.lines[i], sc.lines[i].cand_up, sc.lines[i].cand_dn, sc);
+        finish(sc, j0, u_lo, u_hi);
     }
 
   private:
@@ -514,36 +517,26 @@ class GroupWorker {
         const double* Z = L.Z;
         const double* S = L.S;
         auto pos = [&](int k) { return kGeo ? S[k] : -static_cast<double>(k); };
-        int* back = sc.back.data();
-        int* front = sc.front.data();
-        int* grave = sc.grave.data();
+        Vertex* back = sc.back.data();
+        Vertex* front = sc.front.data();
+        Vertex* grave = sc.grave.data();
         int* record = sc.record.data();
         int nb = 0, nf = 0, ng = 0, nr = 0;
         int back_start = 0, front_lo = 0, front_hi = -1, pushed = -1, lo = 0;
         const int lag = k_exact_ + 1;
         const double reach_idx = kGeo ? reach_ : reach_ / d_.step_m;  // in pos() units
 
-        auto backInsert = [&](int x) {
-            const double sx = pos(x), zx = Z[x];
-            while (nb >= 2) {
-                const int a = back[nb - 1], b = back[nb - 2];
-                if ((Z[a] - zx) * (pos(b) - sx) <= (Z[b] - zx) * (pos(a) - sx))
-                    --nb;
-                else
-                    break;
-            }
-            back[nb++] = x;
-        };
         auto frontInsert = [&](int x) {
             if (std::isnan(Z[x])) {
                 record[nr++] = -1;
                 return;
             }
-            const double sx = pos(x), zx = Z[x];
+            const Vertex v{pos(x), Z[x], x};
             int popped = 0;
             while (nf >= 2) {
-                const int a = front[nf - 1], b = front[nf - 2];
-                if ((Z[a] - Z[b]) * (sx - pos(b)) <= (zx - Z[b]) * (pos(a) - pos(b))) {
+                const Vertex& a = front[nf - 1];
+                const Vertex& b = front[nf - 2];
+                if ((a.z - b.z) * (v.s - b.s) <= (v.z - b.z) * (a.s - b.s)) {
                     grave[ng++] = a;
                     --nf;
                     ++popped;
@@ -551,7 +544,7 @@ class GroupWorker {
                     break;
                 }
             }
-            front[nf++] = x;
+            front[nf++] = v;
             record[nr++] = popped;
         };
         auto popFarthest = [&] {
@@ -572,30 +565,6 @@ class GroupWorker {
             }
             ++front_lo;
         };
-        // The tangent point from the eye (sE, zE) over both hulls (−1: none).
-        // The tangent point from the eye (sE, zE) over both hulls (−1: none). pf and pb are
-        // where the search starts on the front and back hulls (positions from their nearest
-        // vertex) and return where it ended: a higher eye at the same place touches at or beyond
-        // those positions, so its search can start there.
-        auto tangent = [&](double sE, double zE, int& pf, int& pb) {
-            auto improves = [&](int p0, int p1) {  // p1 farther than p0
-                return (Z[p1] - zE) * (pos(p0) - sE) > (Z[p0] - zE) * (pos(p1) - sE);
-            };
-            int best = -1;
-            if (nf > 0) {
-                pf = peakFrom(nf, pf, [&](int i) { return improves(front[i], front[i + 1]); });
-                best = front[pf];
-            }
-            if (nb > 0) {
-                pb = peakFrom(nb, pb,
-                              [&](int i) { return improves(back[nb - 1 - i], back[nb - 2 - i]); });
-                const int v = back[nb - 1 - pb];
-                // Ties go to the nearer sample (the back hull's are nearer).
-                if (best < 0 || !improves(v, best))
-                    best = v;
-            }
-            return best;
-        };
 
         const float* g_up = L.g_up;
         const float* g_dn = L.g_dn;
@@ -604,8 +573,19 @@ class GroupWorker {
             const int hi = k - lag;
             if (hi >= 0) {
                 pushed = hi;
-                if (!std::isnan(Z[hi]))
-                    backInsert(hi);
+                const double zx = Z[hi];
+                if (!std::isnan(zx)) {
+                    const double sx = pos(hi);
+                    while (nb >= 2) {
+                        const Vertex& a = back[nb - 1];
+                        const Vertex& b = back[nb - 2];
+                        if ((a.z - zx) * (b.s - sx) <= (b.z - zx) * (a.s - sx))
+                            --nb;
+                        else
+                            break;
+                    }
+                    back[nb++] = Vertex{sx, zx, hi};
+                }
             }
             if (limited_) {
                 while (lo <= pushed && pos(lo) - pos(k) > reach_idx) {
@@ -618,22 +598,50 @@ class GroupWorker {
             const double sE = pos(k);
             const double fold = d_.c * (kGeo ? sE * sE : (k * d_.step_m) * (k * d_.step_m));
             // The cells on the line's upper and lower sides (no data for the lower one when the
-            // line passes through cell centres), the lower eye first.
+            // line passes through cell centres), the lower eye first: a higher eye at the same
+            // place touches the hull at or beyond the lower one's tangent point, so its search
+            // starts there.
             const float gu = g_up[k], gd = g_dn[k];
             const bool has_u = !std::isnan(gu), has_d = !std::isnan(gd);
             int pf = 0, pb = 0;
             if (has_u && has_d) {
                 const bool up_low = gu <= gd;
-                const int v1 = tangent(sE, (up_low ? gu : gd) + eye_h_ - fold, pf, pb);
-                const int v2 = tangent(sE, (up_low ? gd : gu) + eye_h_ - fold, pf, pb);
+                const int v1 =
+                    tangent(front, nf, back, nb, sE, (up_low ? gu : gd) + eye_h_ - fold, pf, pb);
+                const int v2 =
+                    tangent(front, nf, back, nb, sE, (up_low ? gd : gu) + eye_h_ - fold, pf, pb);
                 cand_up[k] = k - (up_low ? v1 : v2);
                 cand_dn[k] = k - (up_low ? v2 : v1);
             } else if (has_u) {
-                cand_up[k] = k - tangent(sE, gu + eye_h_ - fold, pf, pb);
+                cand_up[k] = k - tangent(front, nf, back, nb, sE, gu + eye_h_ - fold, pf, pb);
             } else if (has_d) {
-                cand_dn[k] = k - tangent(sE, gd + eye_h_ - fold, pf, pb);
+                cand_dn[k] = k - tangent(front, nf, back, nb, sE, gd + eye_h_ - fold, pf, pb);
             }
         }
+    }
+
+    // The tangent point (sample index) from the eye (sE, zE) over both hulls. pf and pb are where
+    // the search starts on the front and back hulls (positions counted from their nearest
+    // vertex); they return where it ended.
+    static inline int tangent(const Vertex* front, int nf, const Vertex* back, int nb, double sE,
+                              double zE, int& pf, int& pb) {
+        auto improves = [&](const Vertex& v0, const Vertex& v1) {  // v1 farther than v0
+            return (v1.z - zE) * (v0.s - sE) > (v0.z - zE) * (v1.s - sE);
+        };
+        const Vertex* best = nullptr;
+        if (nf > 0) {
+            pf = peakFrom(nf, pf, [&](int i) { return improves(front[i], front[i + 1]); });
+            best = &front[pf];
+        }
+        if (nb > 0) {
+            pb = peakFrom(nb, pb,
+                          [&](int i) { return improves(back[nb - 1 - i], back[nb - 2 - i]); });
+            const Vertex& v = back[nb - 1 - pb];
+            // Ties go to the nearer sample (the back hull's are nearer).
+            if (!best || !improves(v, *best))
+                best = &v;
+        }
+        return best->k;
     }
 
     /// Exact samples of the ray of the eye at (a, p): major crossings t ∈ [t0, t1] and minor
@@ -746,20 +754,18 @@ class GroupWorker {
         }
     }
 
-    // Projected grids: crossings[i0 … i1] of the eye's ray.
-    void crossingRange(Eye& e, int i0, int i1) const {
-        if (i0 > i1)
-            return;
+    // Projected grids: crossings[i0 … i1] of the eye's ray (kChecked: the ray may leave the grid
+    // or the reach on the way).
+    template <bool kChecked>
+    inline void crossingRange(Eye& e, int i0, int i1) const {
         const auto* x = d_.crossings.data();
-        const std::ptrdiff_t base = static_cast<std::ptrdiff_t>(e.row) * w_ + e.col;
-        const float* z = dem_ + base;
-        const int ea = d_.ext_a[i1], ep = d_.ext_p[i1];
-        const bool inside = e.a >= ea && e.a + ea < d_.A && e.p >= ep && e.p + ep < d_.B;
+        const float* z = dem_ + static_cast<std::ptrdiff_t>(e.row) * w_ + e.col;
+        double best_t = e.t, best_d = e.dist;
         for (int i = i0; i <= i1; ++i) {
             const auto& c = x[i];
-            if (limited_ && c.dist > reach_)
-                break;
-            if (!inside) {
+            if (kChecked) {
+                if (c.dist > reach_)
+                    break;
                 const int a1 = e.a + c.da1, p1 = e.p + c.dp1;
                 const int a2 = e.a + c.da2, p2 = e.p + c.dp2;
                 if (a1 < 0 || a1 >= d_.A || p1 < 0 || p1 >= d_.B || a2 < 0 || a2 >= d_.A ||
@@ -768,11 +774,12 @@ class GroupWorker {
             }
             const double zs = (1 - c.w) * z[c.off1] + c.w * z[c.off2];
             const double t = (zs - c.drop - e.ze) * c.inv_dist;  // NaN (no data) never wins
-            const bool better = t > e.t;
-            e.t = better ? t : e.t;
-            e.dist = better ? c.dist : e.dist;
+            const bool better = t > best_t;
+            best_t = better ? t : best_t;
+            best_d = better ? c.dist : best_d;
         }
-        e.found = e.t > -kInf;
+        e.t = best_t;
+        e.dist = best_d;
     }
 
     void finishCell(Eye& e, int c_up, int c_dn) const {
@@ -802,67 +809,87 @@ class GroupWorker {
 
     void finishCellProjected(Eye& e, int c_up, int c_dn) const {
         const int* mp = d_.major_pos.data();
-        const int near_end = mp[k_exact_ + 1];  // first crossing beyond the near field
-        crossingRange(e, 0, near_end - 1);
-        if (c_up < 0 && c_dn < 0)
-            return;
-        // Windows: majors c − r … c + r and the minors between majors c − r − 1 and c + r + 1.
-        const int t_max = d_.A;
-        auto lo_of = [&](int c) {
-            return std::max(near_end, mp[std::max(c - refine_ - 1, 0)] + 1);
-        };
-        auto hi_of = [&](int c) { return mp[std::min(c + refine_ + 1, t_max + 1)] - 1; };
-        if (c_up >= 0 && c_dn >= 0 && c_up != c_dn) {
-            int l1 = lo_of(std::min(c_up, c_dn)), h1 = hi_of(std::min(c_up, c_dn));
-            int l2 = lo_of(std::max(c_up, c_dn)), h2 = hi_of(std::max(c_up, c_dn));
-            if (l2 <= h1 + 1) {
-                crossingRange(e, l1, std::max(h1, h2));
+        // Index ranges of the crossings to sample: the near field (the first K major steps and
+        // the minors before step K + 1), then around each candidate the majors c − r … c + r and
+        // the minors between majors c − r − 1 and c + r + 1; overlapping ranges are merged.
+        int lo[3], hi[3], nr = 0;
+        lo[0] = 0, hi[0] = mp[k_exact_ + 1] - 1;
+        nr = hi[0] >= 0 ? 1 : 0;
+        const int near_end = mp[k_exact_ + 1];
+        int cands[2] = {std::min(c_up, c_dn), std::max(c_up, c_dn)};
+        if (cands[0] < 0)
+            cands[0] = cands[1], cands[1] = -1;
+        for (int c : cands) {
+            if (c < 0)
+                continue;
+            const int l = std::max(near_end, mp[std::max(c - refine_ - 1, 0)] + 1);
+            const int h = mp[std::min(c + refine_ + 1, d_.A + 1)] - 1;
+            if (l > h)
+                continue;
+            if (nr > 0 && l <= hi[nr - 1] + 1) {
+                hi[nr - 1] = std::max(hi[nr - 1], h);
             } else {
-                crossingRange(e, l1, h1);
-                crossingRange(e, l2, h2);
+                lo[nr] = l, hi[nr] = h, ++nr;
             }
-            return;
         }
-        const int c = c_up >= 0 ? c_up : c_dn;
-        crossingRange(e, lo_of(c), hi_of(c));
+        if (nr == 0)
+            return;
+        // One edge test for the whole cell: when every crossing it samples stays inside the grid
+        // (and the reach is unlimited) the inner loop needs no checks.
+        const int last = hi[nr - 1];
+        const int ea = d_.ext_a[last], ep = d_.ext_p[last];
+        const bool inside =
+            !limited_ && e.a >= ea && e.a + ea < d_.A && e.p >= ep && e.p + ep < d_.B;
+        for (int i = 0; i < nr; ++i) {
+            if (inside)
+                crossingRange<false>(e, lo[i], hi[i]);
+            else
+                crossingRange<true>(e, lo[i], hi[i]);
+        }
+        e.found = e.t > -kInf;
     }
 
-    // The cells between lines L (their lower line) and H = L + 1.
-    void finishPair(const LineBuf& L, const int* cand_up, const LineBuf& H,
-                    const int* cand_dn) const {
+    // The cells of the group, major index by major index: the cells of one major index are
+    // neighbours in memory or in neighbouring rows, so the summary grids and the tiles are
+    // written in runs.
+    void finish(const Scratch& sc, long j0, int u_lo, int u_hi) const {
         const int B = d_.B, sign = d_.sign;
-        const int a0 = std::min(L.n ? L.a_lo : d_.A, H.n ? H.a_lo : d_.A);
-        const int a1 = std::max(L.n ? L.a_hi : -1, H.n ? H.a_hi : -1);
-        for (int a = a0; a <= a1; ++a) {
-            const int q = static_cast<int>(L.j + d_.xi[a]);
-            if (q < 0 || q >= B)
-                continue;
-            int c_up = -1, c_dn = -1;
-            float gr;
-            if (L.has(a)) {
-                const int k = L.k(a, sign);
-                c_up = cand_up[k];
-                gr = L.g_up[k];
-            } else {
-                gr = ground(a, q);
+        for (int a = u_lo; a <= u_hi; ++a) {
+            const int xa = d_.xi[a];
+            const bool g_pos = d_.gx[a] > 0;
+            for (int i = 0; i < kGroupLines; ++i) {
+                const int q = static_cast<int>(j0 + i + xa);
+                if (q < 0 || q >= B)
+                    continue;
+                const LineBuf& L = sc.lines[i];  // the cell's lower line
+                const LineBuf& H = sc.lines[i + 1];
+                int c_up = -1, c_dn = -1;
+                float gr;
+                if (L.has(a)) {
+                    const int k = L.k(a, sign);
+                    c_up = L.cand_up[k];
+                    gr = L.g_up[k];
+                } else {
+                    gr = ground(a, q);
+                }
+                if (std::isnan(gr))
+                    continue;
+                if (g_pos && H.has(a))
+                    c_dn = H.cand_dn[H.k(a, sign)];
+                Eye e;
+                e.a = a, e.p = q;
+                e.col = d_.major_cols ? a : q;
+                e.row = d_.major_cols ? q : a;
+                e.ze = gr + eye_h_;
+                e.m = d_.geographic ? d_.m_row[e.row] : d_.m;
+                finishCell(e, c_up, c_dn);
+                if (!e.found)
+                    continue;
+                const float angle = static_cast<float>(atanDeg(e.t));
+                acc_.add(static_cast<std::size_t>(e.row) * w_ + e.col, angle, e.t);
+                if (tiles_)
+                    tiles_->put(e.col, e.row, angle, static_cast<float>(e.dist));
             }
-            if (std::isnan(gr))
-                continue;
-            if (d_.gx[a] > 0 && H.has(a))
-                c_dn = cand_dn[H.k(a, sign)];
-            Eye e;
-            e.a = a, e.p = q;
-            e.col = d_.major_cols ? a : q;
-            e.row = d_.major_cols ? q : a;
-            e.ze = gr + eye_h_;
-            e.m = d_.geographic ? d_.m_row[e.row] : d_.m;
-            finishCell(e, c_up, c_dn);
-            if (!e.found)
-                continue;
-            const float angle = static_cast<float>(atanDeg(e.t));
-            acc_.add(static_cast<std::size_t>(e.row) * w_ + e.col, angle, e.t);
-            if (tiles_)
-                tiles_->put(e.col, e.row, angle, static_cast<float>(e.dist));
         }
     }
 
