@@ -160,8 +160,8 @@ void SvgPlot::text(double x, double y, const std::string& label, const std::stri
     body_ += "<text x=\"" + num(px(x) + dx_px) + "\" y=\"" + num(py(y) + dy_px) +
              "\" text-anchor=\"" + anchor +
              "\" font-family=\"sans-serif\" font-size=\"11\" fill=\"" + colour +
-             "\" stroke=\"white\" stroke-width=\"3\" paint-order=\"stroke\">" +
-             svgEscape(label) + "</text>\n";
+             "\" stroke=\"white\" stroke-width=\"3\" paint-order=\"stroke\">" + svgEscape(label) +
+             "</text>\n";
 }
 
 void SvgPlot::legend(const std::string& label, const SvgStyle& style) {
