@@ -164,8 +164,8 @@ void RasterWriter::writeWindow(int band, int col0, int row0, int width, int heig
     GDALRasterBandH b = GDALGetRasterBand(static_cast<GDALDatasetH>(dataset_), band);
     const GDALDataType type = gdalType(spec_.type);
     const int bytes = GDALGetDataTypeSizeBytes(type);
-    if (GDALRasterIO(b, GF_Write, col0, row0, width, height, const_cast<void*>(data), width,
-                     height, type, bytes, line_stride * bytes) != CE_None) {
+    if (GDALRasterIO(b, GF_Write, col0, row0, width, height, const_cast<void*>(data), width, height,
+                     type, bytes, line_stride * bytes) != CE_None) {
         throw OutputError(spec_.path + ": writing failed (" + io_detail::lastGdalError() + ")");
     }
 }
@@ -176,6 +176,22 @@ void RasterWriter::flush() {
     CPLErrorReset();
     GDALFlushCache(static_cast<GDALDatasetH>(dataset_));
     if (CPLGetLastErrorType() >= CE_Failure) {
+        throw OutputError(spec_.path + ": writing failed (" + io_detail::lastGdalError() + ")");
+    }
+}
+
+void RasterWriter::blockSize(int& cols, int& rows) const {
+    cols = rows = 0;
+    if (!dataset_)
+        return;
+    GDALGetBlockSize(GDALGetRasterBand(static_cast<GDALDatasetH>(dataset_), 1), &cols, &rows);
+}
+
+void RasterWriter::writeBlock(int band, int block_col, int block_row, const void* data) {
+    if (!dataset_)
+        throw InternalError("write to a closed raster " + spec_.path);
+    GDALRasterBandH b = GDALGetRasterBand(static_cast<GDALDatasetH>(dataset_), band);
+    if (GDALWriteBlock(b, block_col, block_row, const_cast<void*>(data)) != CE_None) {
         throw OutputError(spec_.path + ": writing failed (" + io_detail::lastGdalError() + ")");
     }
 }

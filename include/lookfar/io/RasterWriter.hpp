@@ -58,6 +58,13 @@ class RasterWriter {
     /// Writes the blocks GDAL holds in its cache for this raster and drops them (keeps the
     /// memory of a raster written piece by piece bounded).
     void flush();
+    /// Block size of the raster (columns, rows).
+    void blockSize(int& cols, int& rows) const;
+    /// Writes one whole block of band `band` (1-based), bypassing GDAL's block cache: `data` holds
+    /// cols × rows values of the block (block size as blockSize(); values beyond the raster's edge
+    /// are ignored). For rasters written block by block in many bands, GDAL's cache would keep a
+    /// block per band.
+    void writeBlock(int band, int block_col, int block_row, const void* data);
     /// Closes the file and renames it into place. Throws OutputError, or Interrupted when
     /// the run was interrupted (then nothing is renamed).
     void commit();
