@@ -5,6 +5,7 @@
 
 #include <cmath>
 #include <cstdio>
+#include <cstring>
 #include <limits>
 #include <memory>
 #include <string>
@@ -57,7 +58,12 @@ std::string azimuthText(double az) {
 /// every few MiB so that memory stays bounded whatever N.
 class RasterSink final : public HorizonSink {
   public:
-    RasterSink(RasterWriter* angle, RasterWriter* distance) : angle_(angle), distance_(distance) {}
+    RasterSink(RasterWriter* angle, RasterWriter* distance) : angle_(angle), distance_(distance) {
+        for (RasterWriter* w : {angle, distance}) {
+            if (w)
+                w->blockSize(block_cols_, block_rows_);
+        }
+    }
     bool wantsRectangles() const override { return angle_ || distance_; }
     void rectangle(int index, int col0, int row0, int width, int height, int stride,
                    const float* angle, const float* distance) override {
@@ -70,20 +76,32 @@ class RasterSink final : public HorizonSink {
     void endDirection(int) override { flush(); }
 
   private:
-    static constexpr std::size_t kFlushBytes = 16u << 20;
+    static constexpr std::size_t kFlushBytes = 2u << 20;
     void put(RasterWriter* w, int index, int col0, int row0, int width, int height, int stride,
              const float* data) {
         if (!w)
             return;
-        buf_.resize(static_cast<std::size_t>(width) * height);
+        // A rectangle that is one block of the raster is written as a block, past GDAL's cache
+        // (which would keep one block per band: memory growing with N); others as a window.
+        const bool block = block_cols_ > 0 && col0 % block_cols_ == 0 && row0 % block_rows_ == 0 &&
+                           width <= block_cols_ && height <= block_rows_ &&
+                           (width == block_cols_ || col0 + width == w->spec().width) &&
+                           (height == block_rows_ || row0 + height == w->spec().height);
+        const int out_w = block ? block_cols_ : width;
+        buf_.assign(static_cast<std::size_t>(out_w) * (block ? block_rows_ : height),
+                    kHorizonNoData);
         for (int r = 0; r < height; ++r) {
             for (int c = 0; c < width; ++c) {
                 const float v = data[static_cast<std::size_t>(r) * stride + c];
-                buf_[static_cast<std::size_t>(r) * width + c] = std::isnan(v) ? kHorizonNoData : v;
+                buf_[static_cast<std::size_t>(r) * out_w + c] = std::isnan(v) ? kHorizonNoData : v;
             }
         }
-        w->writeWindow(index + 1, col0, row0, width, height, buf_.data(), width);
+        if (block)
+            w->writeBlock(index + 1, col0 / block_cols_, row0 / block_rows_, buf_.data());
+        else
+            w->writeWindow(index + 1, col0, row0, width, height, buf_.data(), width);
     }
+    int block_cols_ = 0, block_rows_ = 0;
     void flush() {
         if (angle_)
             angle_->flush();
@@ -182,13 +200,21 @@ void runGrid(const HorizonState& st) {
         spec.unit_type = unit;
         // Bands are written one direction after another: band-interleaved blocks are written
         // once each (pixel interleaving would rewrite every block N times).
-        bool interleave_given = false;
-        for (const auto& co : spec.creation_options) {
-            if (co.size() >= 11 && strncasecmp(co.c_str(), "INTERLEAVE=", 11) == 0)
-                interleave_given = true;
-        }
-        if (bands > 1 && !interleave_given)
+        // The fast engine delivers 128 × 128 tiles: blocks of that size are written whole, once,
+        // and the band of tiles waiting for their last line stays small.
+        auto given = [&](const char* key) {
+            for (const auto& co : spec.creation_options) {
+                if (strncasecmp(co.c_str(), key, std::strlen(key)) == 0)
+                    return true;
+            }
+            return false;
+        };
+        if (bands > 1 && !given("INTERLEAVE="))
             spec.creation_options.push_back("INTERLEAVE=BAND");
+        if (bands > 1 && !given("TILED=") && !given("BLOCKXSIZE=") && !given("BLOCKYSIZE=")) {
+            spec.creation_options.push_back("BLOCKXSIZE=128");
+            spec.creation_options.push_back("BLOCKYSIZE=128");
+        }
         for (int i = 0; i < bands; ++i) {
             spec.band_descriptions.push_back(
                 bands == 1 ? what : what + ", azimuth " + azimuthText(horizonAzimuthDeg(i, n)));
@@ -251,6 +277,7 @@ void runGrid(const HorizonState& st) {
                                      " to " + formatNumber(s.max, 4));
         toNoData(summary.svf);
         svf_w->writeBand(1, summary.svf.data());
+        svf_w->flush();
         summary.svf = Grid<float>();
     }
     if (dip_w) {
@@ -260,6 +287,8 @@ void runGrid(const HorizonState& st) {
         t.add("dip", "mean " + deg(s.mean) + ", " + deg(s.min) + " to " + deg(s.max));
         toNoData(summary.dip);
         dip_w->writeBand(1, summary.dip.data());
+        dip_w->flush();
+        summary.dip = Grid<float>();
     }
     t.add("outputs", [&] {
         std::string o;

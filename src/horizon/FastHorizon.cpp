@@ -79,7 +79,7 @@ namespace lookfar::horizon_detail {
 
 namespace {
 
-constexpr int kTileShift = 8;           // 256: the default GeoTIFF block of RasterWriter
+constexpr int kTileShift = 7;           // 128: the GeoTIFF block of the horizon rasters
 constexpr int kTile = 1 << kTileShift;  // output tile side, cells
 constexpr int kTileCells = kTile * kTile;
 constexpr int kGroupLines = 16;  // lines whose cells are finished together
@@ -144,8 +144,12 @@ struct Direction {
     std::vector<int> ext_a, ext_p;  // largest |offset| + 1 among crossings[0 … i]
 };
 
-Direction setUp(const EngineInput& in, int index) {
-    Direction d;
+/// Fills `d` for direction `index`, reusing its vectors (no allocation after the first
+/// directions, so memory does not creep up with N).
+void setUp(const EngineInput& in, int index, Direction& d) {
+    d.crossings.clear();
+    d.ext_a.clear();
+    d.ext_p.clear();
     const int w = in.dem.width(), h = in.dem.height();
     const GridMetric& metric = in.metric;
     d.azimuth_deg = horizonAzimuthDeg(index, in.options.directions);
@@ -245,7 +249,6 @@ Direction setUp(const EngineInput& in, int index) {
     const int x_first = d.xi.front(), x_last = d.xi.back();
     d.jmin = -static_cast<long>(std::max(x_first, x_last));
     d.jmax = d.B - 1 - static_cast<long>(std::min(x_first, x_last));
-    return d;
 }
 
 /// atan in degrees: range reduction to |u| ≤ tan(π/8) and a polynomial in u² fitted to atan on
@@ -931,12 +934,15 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
         s.reserve(std::max(w, h) + 1);
     constexpr std::int64_t kPerDirection = 1000;
     progress.begin("horizon", n_dir * kPerDirection);
+    Direction d;
+    std::vector<TileInfo> by_start, by_end, ready;
 
     for (int i = 0; i < n_dir; ++i) {
-        const Direction d = setUp(in, i);
+        setUp(in, i, d);
         sink.beginDirection(i, d.azimuth_deg);
         // The lower lines of each tile's cells (x_a is monotone: extremes at the tile's ends).
-        std::vector<TileInfo> by_start, by_end;
+        by_start.clear();
+        by_end.clear();
         if (rectangles) {
             for (int ty = 0; ty < tiles.nty; ++ty) {
                 for (int tx = 0; tx < tiles.ntx; ++tx) {
@@ -960,7 +966,6 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
         const GroupWorker worker(in, d, rectangles ? &tiles : nullptr, acc);
         const long span = d.jmax - d.jmin + 1;
         const long batch_lines = static_cast<long>(kGroupLines) * kBatchGroups;
-        std::vector<TileInfo> ready;
         for (long j0 = d.jmin; j0 <= d.jmax; j0 += batch_lines) {
             const long j1 = std::min(j0 + batch_lines - 1, d.jmax);
             const bool last = j1 == d.jmax;

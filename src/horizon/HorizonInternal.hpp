@@ -89,7 +89,7 @@ RayResult marchRay(const Grid<float>& dem, const GridMetric& metric, const Curva
 /// Per-cell accumulators of the sky-view factor and the dip over the directions.
 class SummaryAccumulator {
   public:
-    SummaryAccumulator(int width, int height, bool want_svf, bool want_dip);
+    SummaryAccumulator(int width, int height, int directions, bool want_svf, bool want_dip);
     /// Adds direction results for cell index `i` (t = tangent of the angle; NaN = no data).
     void add(std::size_t i, float angle_deg, double t) {
         if (std::isnan(angle_deg))
@@ -97,22 +97,26 @@ class SummaryAccumulator {
         if (want_svf_) {
             // sin(atan t) = t / √(1 + t²): no trigonometry per cell and direction.
             if (t > 0)
-                svf_sum_[i] += static_cast<float>(t / std::sqrt(1.0 + t * t));
-            if (count_[i] < 0xFFFF)
-                ++count_[i];
+                svf_sum_.data()[i] += static_cast<float>(t / std::sqrt(1.0 + t * t));
+            if (count8_.empty())
+                ++count16_[i];
+            else
+                ++count8_[i];
         }
-        if (want_dip_ && !(angle_deg >= min_angle_[i]))
-            min_angle_[i] = angle_deg;
+        if (want_dip_ && !(angle_deg >= min_angle_.data()[i]))
+            min_angle_.data()[i] = angle_deg;
     }
-    /// Turns the sums into the summary grids (releases the accumulators).
+    /// Turns the sums into the summary grids, in place (no grid is copied).
     HorizonSummary finish();
 
   private:
     int width_, height_;
     bool want_svf_, want_dip_;
-    std::vector<float> svf_sum_;
-    std::vector<std::uint16_t> count_;
-    std::vector<float> min_angle_;
+    Grid<float> svf_sum_;  // becomes the sky-view factor
+    // Directions with data per cell: one byte a cell up to 255 directions, else two.
+    std::vector<std::uint8_t> count8_;
+    std::vector<std::uint16_t> count16_;
+    Grid<float> min_angle_;  // becomes the dip
 };
 
 struct EngineInput {

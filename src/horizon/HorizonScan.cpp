@@ -119,34 +119,40 @@ RayResult marchRay(const Grid<float>& dem, const GridMetric& metric, const Curva
     return best;
 }
 
-SummaryAccumulator::SummaryAccumulator(int width, int height, bool want_svf, bool want_dip)
+SummaryAccumulator::SummaryAccumulator(int width, int height, int directions, bool want_svf,
+                                       bool want_dip)
     : width_(width), height_(height), want_svf_(want_svf), want_dip_(want_dip) {
-    const std::size_t n = static_cast<std::size_t>(width) * height;
     if (want_svf_) {
-        svf_sum_.assign(n, 0.0f);
-        count_.assign(n, 0);
+        svf_sum_ = Grid<float>(width, height, 0.0f);
+        const std::size_t n = static_cast<std::size_t>(width) * height;
+        if (directions <= 255)
+            count8_.assign(n, 0);
+        else
+            count16_.assign(n, 0);
     }
     if (want_dip_)
-        min_angle_.assign(n, std::numeric_limits<float>::quiet_NaN());
+        min_angle_ = Grid<float>(width, height, std::numeric_limits<float>::quiet_NaN());
 }
 
 HorizonSummary SummaryAccumulator::finish() {
     HorizonSummary out;
     const float nan = std::numeric_limits<float>::quiet_NaN();
-    const std::size_t n = static_cast<std::size_t>(width_) * height_;
     if (want_svf_) {
-        out.svf = Grid<float>(width_, height_);
-        for (std::size_t i = 0; i < n; ++i)
-            out.svf.data()[i] = count_[i] ? 1.0f - svf_sum_[i] / count_[i] : nan;
-        std::vector<float>().swap(svf_sum_);
+        float* v = svf_sum_.data();
+        for (std::size_t i = 0; i < svf_sum_.size(); ++i) {
+            const int count = count8_.empty() ? count16_[i] : count8_[i];
+            v[i] = count ? 1.0f - v[i] / count : nan;
+        }
+        std::vector<std::uint8_t>().swap(count8_);
+        std::vector<std::uint16_t>().swap(count16_);
+        out.svf = std::move(svf_sum_);
     }
     if (want_dip_) {
-        out.dip = Grid<float>(width_, height_);
-        for (std::size_t i = 0; i < n; ++i)
-            out.dip.data()[i] = -min_angle_[i];
-        std::vector<float>().swap(min_angle_);
+        float* v = min_angle_.data();
+        for (std::size_t i = 0; i < min_angle_.size(); ++i)
+            v[i] = -v[i];
+        out.dip = std::move(min_angle_);
     }
-    std::vector<std::uint16_t>().swap(count_);
     return out;
 }
 
@@ -191,7 +197,8 @@ HorizonScan::HorizonScan(const Grid<float>& dem, const GridGeometry& geometry,
 HorizonSummary HorizonScan::run(HorizonSink& sink, Progress& progress) const {
     using namespace horizon_detail;
     EngineInput in{dem_, geometry_, *metric_, curvature_, options_};
-    SummaryAccumulator acc(dem_.width(), dem_.height(), options_.want_svf, options_.want_dip);
+    SummaryAccumulator acc(dem_.width(), dem_.height(), options_.directions, options_.want_svf,
+                           options_.want_dip);
     if (options_.method == HorizonMethod::Reference) {
         referenceScan(in, sink, acc, progress);
     } else {

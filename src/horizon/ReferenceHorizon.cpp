@@ -30,7 +30,10 @@ void referenceScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator&
     const Grid<float>& dem = in.dem;
     const int w = dem.width(), h = dem.height();
     const int n_dir = in.options.directions;
-    constexpr int kStripRows = 64;
+    // Strips of 128 rows handed over as 128 × 128 rectangles: the block size of the horizon
+    // rasters, so that they can be written block by block.
+    constexpr int kStripRows = 128;
+    constexpr int kRectCols = 128;
     const int strips = (h + kStripRows - 1) / kStripRows;
     const float nan = std::numeric_limits<float>::quiet_NaN();
     std::vector<float> angle(static_cast<std::size_t>(w) * kStripRows);
@@ -74,7 +77,12 @@ void referenceScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator&
                     stop = true;
             }
             throwIfCancelled(progress);
-            sink.rectangle(i, 0, row0, w, rows, w, angle.data(), distance.data());
+            if (sink.wantsRectangles()) {
+                for (int c0 = 0; c0 < w; c0 += kRectCols) {
+                    sink.rectangle(i, c0, row0, std::min(kRectCols, w - c0), rows, w,
+                                   angle.data() + c0, distance.data() + c0);
+                }
+            }
             progress.advance(++done);
         }
         sink.endDirection(i);

@@ -1,7 +1,11 @@
 // `lookfar horizon` run on the built binary: outside values through the whole tool (REFERENCES.md
 // rows in the comments), the layout of its outputs, and the bad-input rules of DESIGN.md.
+#include <fcntl.h>
 #include <gdal.h>
 #include <gtest/gtest.h>
+#include <sys/resource.h>
+#include <sys/wait.h>
+#include <unistd.h>
 
 #include <nlohmann/json.hpp>
 
@@ -226,6 +230,45 @@ TEST(HorizonCliTest, IdenticalRastersForOneAndTwoThreads) {
         for (int i = 0; i < a.bands; ++i)
             EXPECT_EQ(a.values[i], b.values[i]) << method << " band " << i;
     }
+}
+
+// The memory rule (common practice, no source): peak memory must not grow with N. Each
+// band is written block by block, so 600 bands take no more memory than 8 (GDAL's block cache
+// would keep a block per band, 64 KiB each here: 37 MiB more for 600 bands).
+TEST(HorizonCliTest, PeakMemoryDoesNotGrowWithDirections) {
+    ScratchDir dir;
+    auto peakMiB = [&](const std::string& n) {
+        const std::string out = dir.file("h" + n + ".tif");
+        std::vector<std::string> args = {LOOKFAR_CLI_PATH,
+                                         "horizon",
+                                         testRaster("nodata_hole.tif"),
+                                         "-o",
+                                         out,
+                                         "--distance",
+                                         dir.file("d" + n + ".tif"),
+                                         "--directions",
+                                         n,
+                                         "--quiet"};
+        pid_t pid = fork();
+        if (pid == 0) {
+            int devnull = open("/dev/null", O_WRONLY);
+            dup2(devnull, STDOUT_FILENO);
+            dup2(devnull, STDERR_FILENO);
+            std::vector<char*> argv;
+            for (auto& a : args)
+                argv.push_back(const_cast<char*>(a.c_str()));
+            argv.push_back(nullptr);
+            execv(argv[0], argv.data());
+            _exit(127);
+        }
+        int status = 0;
+        struct rusage ru {};
+        wait4(pid, &status, 0, &ru);
+        EXPECT_TRUE(WIFEXITED(status) && WEXITSTATUS(status) == 0) << n;
+        return ru.ru_maxrss / 1024.0;
+    };
+    const double few = peakMiB("8"), many = peakMiB("600");
+    EXPECT_LT(many - few, 16.0) << few << " MiB for 8 directions, " << many << " for 600";
 }
 
 // The panorama: an SVG with the terrain horizon filled, the eye's horizontal and the sea-horizon
