@@ -417,8 +417,8 @@ void runPoint(const HorizonState& st) {
         sectors.push_back(
             {{"from_deg", s.from_deg}, {"to_deg", s.to_deg}, {"width_deg", s.width_deg}});
         sector_text += (sector_text.empty() ? "" : "; ") + fmt("%.1f", s.from_deg) + "° to " +
-                       fmt("%.1f", s.to_deg) + "° clockwise (" + fmt("%.4g", s.width_deg) +
-                       "° wide)";
+                       fmt("%.1f", s.to_deg) + "° clockwise, " + fmt("%.4g", s.width_deg) +
+                       "° wide";
     }
     j["spot"] = {{"x", given.x},           {"y", given.y},     {"col", spot.col},
                  {"row", spot.row},        {"cell_x", cell.x}, {"cell_y", cell.y},
@@ -465,7 +465,9 @@ void runPoint(const HorizonState& st) {
         sector_text = "all round (360°)";
     t.add("open sectors", sector_text.empty() ? "none (the horizon is at or above the eye's "
                                                 "horizontal in every direction)"
-                                              : sector_text + " (horizon below the horizontal)");
+                                              : sector_text +
+                                                    " (horizon below the eye's "
+                                                    "horizontal)");
     t.add("sky-view factor",
           std::isfinite(p.sky_view_factor) ? formatNumber(p.sky_view_factor, 4) : "-");
     t.add("dip", deg(p.dip_deg) + " (largest depression of the terrain horizon)");
