@@ -527,7 +527,7 @@ Command addHorizonCommand(CLI::App& root) {
             "ray is sampled exactly there), or reference (every ray marched cell by cell; slow). "
             "--at always uses the reference");
     app->add_option("-o,--output", state->output,
-                    "Float32 raster of N bands: band i is the horizon angle at azimuth "
+                    "Float32 raster of N bands: band i + 1 is the horizon angle at azimuth "
                     "i*360/N, degrees above the eye's horizontal; -9999 no data")
         ->group("Every cell");
     state->directions_opt =
