@@ -150,6 +150,20 @@ TEST(HorizonTest, SeaHorizonDistanceMatchesBowditch) {
     }
 }
 
+// Row 4: ITU-R recommendations on the effective Earth radius, 4/3-Earth atmosphere (k = 0.25):
+// radio horizon d(km) = 4.12 √h(m) over a smooth Earth (from memory; tolerance 1 %).
+TEST(HorizonTest, RadioHorizonWithFourThirdsEarth) {
+    const double h = 30.0;
+    const Grid<float> z = seaWithStack(501, h);
+    const double itu_m = 4.12 * std::sqrt(h) * 1000.0;  // 22.6 km
+    for (int engine = 0; engine < 2; ++engine) {
+        const CellHorizon c = cellHorizon(z, utmGrid(501, 501, 100), sphere(0.25),
+                                          options(4, 0.0, {}), engine, 250, 250);
+        for (int i = 0; i < 4; ++i)
+            EXPECT_NEAR(c.distance_m[i], itu_m, 0.01 * itu_m) << name(engine) << " " << i;
+    }
+}
+
 // Row 3: dip from 304.8 m (1000 ft) and 306.93 m (1007 ft) with k = 1/6: 0.5116° and 0.5134°
 // (common practice, no source; tolerance 0.0005°).
 TEST(HorizonTest, DipFromThousandFeetWithStandardRefraction) {
