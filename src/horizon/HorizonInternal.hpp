@@ -106,6 +106,13 @@ class SummaryAccumulator {
         if (want_dip_ && !(angle_deg >= min_angle_.data()[i]))
             min_angle_.data()[i] = angle_deg;
     }
+    /// add() for the `n` cells from index i0 on (one run of a row).
+    void addRun(std::size_t i0, int n, const float* angle_deg, const double* t) {
+        if (!want_svf_ && !want_dip_)
+            return;
+        for (int k = 0; k < n; ++k)
+            add(i0 + k, angle_deg[k], t[k]);
+    }
     /// Turns the sums into the summary grids, in place (no grid is copied).
     HorizonSummary finish();
 

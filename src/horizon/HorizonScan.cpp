@@ -175,8 +175,8 @@ void validateHorizonOptions(const HorizonOptions& o) {
     if (!(o.latitude_deg >= -90 && o.latitude_deg <= 90)) {
         throw UsageError("the latitude of the curvature must lie in [−90°, 90°]");
     }
-    if (o.exact_steps < 0 || o.exact_steps > 16) {
-        throw UsageError("the fast engine's exact steps must lie in 0 to 16");
+    if (o.exact_steps < 0 || o.exact_steps > 64) {
+        throw UsageError("the fast engine's exact steps must lie in 0 to 64");
     }
     if (o.refine_steps < 0 || o.refine_steps > 8) {
         throw UsageError("the fast engine's refine steps must lie in 0 to 8");

@@ -54,12 +54,12 @@ struct HorizonOptions {
     bool want_svf = false;  ///< fill HorizonSummary::svf
     bool want_dip = false;  ///< fill HorizonSummary::dip
     /// Fast engine only: the first `exact_steps` grid steps of every ray are sampled exactly like
-    /// the reference (the row and column crossings of the ray itself), 0 ≤ exact_steps ≤ 16.
-    int exact_steps = 2;
+    /// the reference (the row and column crossings of the ray itself), 0 ≤ exact_steps ≤ 64.
+    int exact_steps = 16;
     /// Fast engine only: around each horizon candidate found on the scan lines, the ray's own
     /// crossings within ± `refine_steps` grid steps are sampled exactly, 0 ≤ refine_steps ≤ 8.
     /// The defaults are the measured balance of speed and agreement (docs/horizon.md).
-    int refine_steps = 2;
+    int refine_steps = 1;
 };
 
 /// Azimuth of direction `index` of `directions`, degrees clockwise from grid north, [0, 360).
