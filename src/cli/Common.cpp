@@ -398,4 +398,25 @@ void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& t
     std::cout.flush();
 }
 
+std::string printfNumber(const char* format, double v) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, format, v);
+    return buf;
+}
+
+std::string printfFinite(const char* format, double v) {
+    return std::isfinite(v) ? printfNumber(format, v) : std::string();
+}
+
+std::string fmtg(double v) {
+    return printfNumber("%.10g", v);
+}
+
+double wrap360(double az) {
+    az = std::fmod(az, 360.0);
+    if (az < 0)
+        az += 360.0;
+    return az >= 360.0 ? 0.0 : az;
+}
+
 }  // namespace lookfar::cli

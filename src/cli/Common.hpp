@@ -149,6 +149,15 @@ void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& t
 /// Writes a text file atomically (temp + rename), refusing to overwrite unless allowed.
 void writeTextFile(const std::string& path, const std::string& content);
 
+/// `v` through printf's `format` (one double conversion).
+std::string printfNumber(const char* format, double v);
+/// The same, or "" when `v` is not finite (an empty CSV field).
+std::string printfFinite(const char* format, double v);
+/// `v` with 10 significant digits (%.10g), for coordinates in CSVs and tables.
+std::string fmtg(double v);
+/// An azimuth in [0, 360).
+double wrap360(double az);
+
 /// The command line as typed, for metadata.
 std::string& commandLine();
 

@@ -36,14 +36,6 @@ struct HorizonState {
     CLI::Option* step_opt = nullptr;
 };
 
-std::string fmt(const char* f, double v) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, f, v);
-    return buf;
-}
-std::string fmtg(double v) {
-    return fmt("%.10g", v);
-}
 std::string deg(double v, int decimals = 3) {
     return std::isfinite(v) ? formatNumber(v, decimals) + "°" : "-";
 }
@@ -51,7 +43,7 @@ std::string reachText(double reach_m) {
     return std::isfinite(reach_m) ? formatDistance(reach_m) : "unlimited";
 }
 std::string azimuthText(double az) {
-    return fmt("%.3f", az) + "° clockwise from grid north";
+    return printfNumber("%.3f", az) + "° clockwise from grid north";
 }
 
 /// Streams rectangles to the angle and distance rasters, NaN → −9999, with GDAL's cache flushed
@@ -152,7 +144,7 @@ double centreLatitude(const RunContext& ctx) {
 }
 
 void describeEngine(RunContext& ctx, const HorizonOptions& o) {
-    ctx.run.extra["CURVATURE_LATITUDE_DEG"] = fmt("%.6f", o.latitude_deg);
+    ctx.run.extra["CURVATURE_LATITUDE_DEG"] = printfNumber("%.6f", o.latitude_deg);
     if (o.method == HorizonMethod::Fast) {
         ctx.run.extra["FAST_EXACT_STEPS"] = std::to_string(o.exact_steps);
         ctx.run.extra["FAST_REFINE_STEPS"] = std::to_string(o.refine_steps);
@@ -253,8 +245,8 @@ void runGrid(const HorizonState& st) {
     if (dist_w)
         j["outputs"]["distance"] = st.distance;
     TextTable t("Horizon of every cell of " + ctx.run.dem_path);
-    t.add("directions",
-          std::to_string(n) + ", every " + fmt("%.4g", 360.0 / n) + "° clockwise from grid north");
+    t.add("directions", std::to_string(n) + ", every " + printfNumber("%.4g", 360.0 / n) +
+                            "° clockwise from grid north");
     t.add("eye", formatNumber(ctx.observer_height_m, 2) + " m above the ground of each cell");
     t.add("reach", reachText(ctx.reach_m));
     t.add("earth", ctx.run.earth_model + ", refraction k = " + fmtg(ctx.run.refraction) +
@@ -351,9 +343,10 @@ std::string svgPanorama(const HorizonProfile& p, const std::string& title) {
         sea.stroke = "#1f5fa8";
         sea.width = 1.2;
         sea.dash = "7 4";
-        plot.hline(-p.sea_horizon_dip_deg,
-                   "sea horizon for this eye: dip " + fmt("%.3f", p.sea_horizon_dip_deg) + "°",
-                   sea);
+        plot.hline(
+            -p.sea_horizon_dip_deg,
+            "sea horizon for this eye: dip " + printfNumber("%.3f", p.sea_horizon_dip_deg) + "°",
+            sea);
     }
     // Compass points along the top of the sky (the lines are labelled where they end).
     static const char* const kPoints[] = {"N", "NE", "E", "SE", "S", "SW", "W", "NW", "N"};
@@ -365,7 +358,7 @@ std::string svgPanorama(const HorizonProfile& p, const std::string& title) {
         const bool right = p.highest_azimuth_deg > 270;
         plot.marker(p.highest_azimuth_deg, p.highest_angle_deg, "", "#8c2d04");
         plot.text(p.highest_azimuth_deg, p.highest_angle_deg,
-                  "highest " + fmt("%.2f", p.highest_angle_deg) + "° at " +
+                  "highest " + printfNumber("%.2f", p.highest_angle_deg) + "° at " +
                       formatDistance(p.highest_distance_m),
                   "#8c2d04", right ? "end" : "start", right ? -8 : 8, -8);
     }
@@ -381,7 +374,7 @@ void runPoint(const HorizonState& st) {
     if (st.directions_opt->count())
         throw UsageError("--directions is for every cell; with --at give the step with --step");
     if (!(st.step >= kMinHorizonStepDeg && st.step <= kMaxHorizonStepDeg)) {
-        throw UsageError("--step: " + fmt("%g", st.step) + "° is outside 0.05° to 90°");
+        throw UsageError("--step: " + printfNumber("%g", st.step) + "° is outside 0.05° to 90°");
     }
     const MapPoint given = parsePoint(st.at, "--at");
     RunContext ctx = prepareRun("horizon", st.options, {st.csv, st.plot});
@@ -416,9 +409,9 @@ void runPoint(const HorizonState& st) {
     for (const auto& s : p.open_sectors) {
         sectors.push_back(
             {{"from_deg", s.from_deg}, {"to_deg", s.to_deg}, {"width_deg", s.width_deg}});
-        sector_text += (sector_text.empty() ? "" : "; ") + fmt("%.1f", s.from_deg) + "° to " +
-                       fmt("%.1f", s.to_deg) + "° clockwise, " + fmt("%.4g", s.width_deg) +
-                       "° wide";
+        sector_text += (sector_text.empty() ? "" : "; ") + printfNumber("%.1f", s.from_deg) +
+                       "° to " + printfNumber("%.1f", s.to_deg) + "° clockwise, " +
+                       printfNumber("%.4g", s.width_deg) + "° wide";
     }
     j["spot"] = {{"x", given.x},           {"y", given.y},     {"col", spot.col},
                  {"row", spot.row},        {"cell_x", cell.x}, {"cell_y", cell.y},
@@ -482,12 +475,12 @@ void runPoint(const HorizonState& st) {
     if (!st.csv.empty()) {
         std::string csv = "azimuth_deg,angle_deg,distance_m,x,y,elevation_m\n";
         for (const auto& d : p.directions) {
-            csv += fmt("%.4f", d.azimuth_deg);
+            csv += printfNumber("%.4f", d.azimuth_deg);
             if (d.sample.found) {
                 const MapPoint m = toUser(d.sample.col, d.sample.row);
-                csv += "," + fmt("%.6f", d.sample.angle_deg) + "," +
-                       fmt("%.3f", d.sample.distance_m) + "," + fmtg(m.x) + "," + fmtg(m.y) + "," +
-                       fmt("%.3f", d.sample.elevation_m);
+                csv += "," + printfNumber("%.6f", d.sample.angle_deg) + "," +
+                       printfNumber("%.3f", d.sample.distance_m) + "," + fmtg(m.x) + "," +
+                       fmtg(m.y) + "," + printfNumber("%.3f", d.sample.elevation_m);
             } else {
                 csv += ",,,,,";
             }

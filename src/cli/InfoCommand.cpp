@@ -21,12 +21,6 @@ std::string fmt6(double v) {
     std::snprintf(buf, sizeof buf, "%.6f", v);
     return buf;
 }
-std::string fmtg(double v) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.10g", v);
-    return buf;
-}
-
 void runInfo(const CommonOptions& o) {
     RunContext ctx = prepareRun("info", o, {});
     const Dem& dem = ctx.dem;

@@ -24,21 +24,6 @@ struct IntervisState {
     std::string lines;
 };
 
-std::string fmt(const char* format, double v) {
-    if (!std::isfinite(v))
-        return "";
-    char buf[64];
-    std::snprintf(buf, sizeof buf, format, v);
-    return buf;
-}
-
-double wrap360(double az) {
-    az = std::fmod(az, 360.0);
-    if (az < 0)
-        az += 360.0;
-    return az >= 360.0 ? 0.0 : az;
-}
-
 double round4(double v) {
     return std::round(v * 1e4) / 1e4;
 }
@@ -116,9 +101,9 @@ void runIntervis(const IntervisState& s) {
             const PairVerdict& v = res.at(i, j);
             const PairGeometry& p = pg[static_cast<std::size_t>(i) * n + j];
             csv += csvField(stations[i].name) + "," + csvField(stations[j].name) + "," +
-                   (v.visible ? "yes" : "no") + "," + fmt("%.3f", v.margin_m) + "," +
-                   fmt("%.3f", p.distance_m) + "," + fmt("%.4f", p.azimuth_deg) + "," +
-                   fmt("%.4f", p.back_azimuth_deg) + "\n";
+                   (v.visible ? "yes" : "no") + "," + printfFinite("%.3f", v.margin_m) + "," +
+                   printfFinite("%.3f", p.distance_m) + "," + printfFinite("%.4f", p.azimuth_deg) +
+                   "," + printfFinite("%.4f", p.back_azimuth_deg) + "\n";
         }
     }
 

@@ -26,21 +26,6 @@ struct LinkState {
     std::string csv, plot;
 };
 
-std::string fmt(const char* format, double v) {
-    if (!std::isfinite(v))
-        return "";
-    char buf[64];
-    std::snprintf(buf, sizeof buf, format, v);
-    return buf;
-}
-
-double wrap360(double az) {
-    az = std::fmod(az, 360.0);
-    if (az < 0)
-        az += 360.0;
-    return az >= 360.0 ? 0.0 : az;
-}
-
 /// The map position of every sample, in the DEM's CRS, next to what the engine gets.
 struct PlacedPath {
     std::vector<MapPoint> map;
@@ -105,11 +90,12 @@ std::string profileCsv(const PathProfileResult& r, const PlacedPath& path, bool 
         "fresnel_fraction\n";
     for (std::size_t i = 0; i < r.points.size(); ++i) {
         const ProfilePoint& p = r.points[i];
-        out += fmt("%.3f", p.distance_m) + "," + fmt(xy, path.map[i].x) + "," +
-               fmt(xy, path.map[i].y) + "," + fmt("%.3f", p.terrain_m) + "," +
-               fmt("%.4f", p.earth_bulge_m) + "," + fmt("%.3f", p.sightline_m) + "," +
-               fmt("%.3f", p.clearance_m) + "," + fmt("%.3f", p.fresnel_radius_m) + "," +
-               fmt("%.4f", p.fresnel_fraction) + "\n";
+        out += printfFinite("%.3f", p.distance_m) + "," + printfFinite(xy, path.map[i].x) + "," +
+               printfFinite(xy, path.map[i].y) + "," + printfFinite("%.3f", p.terrain_m) + "," +
+               printfFinite("%.4f", p.earth_bulge_m) + "," + printfFinite("%.3f", p.sightline_m) +
+               "," + printfFinite("%.3f", p.clearance_m) + "," +
+               printfFinite("%.3f", p.fresnel_radius_m) + "," +
+               printfFinite("%.4f", p.fresnel_fraction) + "\n";
     }
     return out;
 }
@@ -349,14 +335,14 @@ void runLink(const LinkState& s) {
               formatNumber(ground, 2) + " m / " + formatNumber(antenna, 2) + " m");
         t.add(std::string(name) + " azimuth",
               formatNumber(az_grid, 3) + "° grid, " + formatNumber(az_true, 3) + "° true");
-        t.add(std::string(name) + " elevation angle", fmt("%+.4f", elev) + "°");
+        t.add(std::string(name) + " elevation angle", printfFinite("%+.4f", elev) + "°");
     };
     endRow("from", r.from_ground_m, r.from_antenna_m, az_grid_from, az_true_from,
            r.from_elevation_deg);
     endRow("to", r.to_ground_m, r.to_antenna_m, az_grid_to, az_true_to, r.to_elevation_deg);
     t.add("effective Earth radius", std::isfinite(r.effective_radius_m)
                                         ? formatNumber(r.effective_radius_m, 0) + " m (k " +
-                                              fmt("%g", ctx.earth.refraction()) + ")"
+                                              printfFinite("%g", ctx.earth.refraction()) + ")"
                                         : "flat Earth");
     t.add("samples", std::to_string(r.points.size()) + ", every " +
                          formatNumber(j["sample_spacing_m"].get<double>(), 2) + " m");

@@ -30,14 +30,6 @@ struct SelectState {
     std::string weight;
 };
 
-std::string fmt(const char* format, double v) {
-    if (!std::isfinite(v))
-        return "";
-    char buf[64];
-    std::snprintf(buf, sizeof buf, format, v);
-    return buf;
-}
-
 /// Reads the weight raster and checks it lies on the DEM's grid (exit 3 naming the file).
 Grid<float> readWeights(const RunContext& ctx, const std::string& path) {
     DemReadOptions read;
@@ -69,7 +61,7 @@ Grid<float> readWeights(const RunContext& ctx, const std::string& path) {
         for (int c = 0; c < w.z.width(); ++c) {
             const float v = w.z(c, r);
             if (v < 0 || std::isinf(v)) {
-                throw InputError(path + ": the weight raster holds " + fmt("%g", v) +
+                throw InputError(path + ": the weight raster holds " + printfFinite("%g", v) +
                                  " at column " + std::to_string(c) + ", row " + std::to_string(r) +
                                  "; weights must be finite and ≥ 0");
             }
@@ -141,7 +133,7 @@ void runSelect(const SelectState& s) {
         chosen += (chosen.empty() ? "" : "; ") + candidates[p.candidate].name;
     ctx.run.extra["CANDIDATES"] = s.candidates;
     ctx.run.extra["COUNT"] = has_count ? std::to_string(s.count) : "none";
-    ctx.run.extra["COVERAGE_PERCENT"] = has_coverage ? fmt("%.10g", coverage) : "none";
+    ctx.run.extra["COVERAGE_PERCENT"] = has_coverage ? printfFinite("%.10g", coverage) : "none";
     ctx.run.extra["WEIGHT"] = s.weight.empty() ? "ground area" : s.weight;
     ctx.run.extra["SELECTED"] = chosen;
 
@@ -152,9 +144,11 @@ void runSelect(const SelectState& s) {
     for (std::size_t k = 0; k < res.ranked.size(); ++k) {
         const SelectedSite& p = res.ranked[k];
         const Site& site = sites[p.candidate];
-        csv += std::to_string(k + 1) + "," + csvField(site.name) + "," + fmt("%.10g", site.x) +
-               "," + fmt("%.10g", site.y) + "," + fmt("%.1f", p.marginal_area_m2) + "," +
-               fmt("%.1f", p.cumulative_area_m2) + "," + fmt("%.4f", p.cumulative_percent) + "\n";
+        csv += std::to_string(k + 1) + "," + csvField(site.name) + "," +
+               printfFinite("%.10g", site.x) + "," + printfFinite("%.10g", site.y) + "," +
+               printfFinite("%.1f", p.marginal_area_m2) + "," +
+               printfFinite("%.1f", p.cumulative_area_m2) + "," +
+               printfFinite("%.4f", p.cumulative_percent) + "\n";
     }
     if (!s.csv.empty())
         writeTextFile(s.csv, csv);
@@ -238,14 +232,15 @@ void runSelect(const SelectState& s) {
                              std::to_string(s.count));
     }
     if (has_coverage) {
-        foot.add("coverage goal",
-                 fmt("%g", coverage) + " %: " + (res.coverage_reached ? "reached" : "not reached"));
+        foot.add("coverage goal", printfFinite("%g", coverage) +
+                                      " %: " + (res.coverage_reached ? "reached" : "not reached"));
     }
     foot.add("guarantee", "greedy choice: at least 63.2 % (1 - 1/e) of the best possible");
     if (has_coverage && !res.coverage_reached) {
-        std::cerr << "lookfar: the coverage goal of " << fmt("%g", coverage)
+        std::cerr << "lookfar: the coverage goal of " << printfFinite("%g", coverage)
                   << " % is not reached with all useful candidates ("
-                  << fmt("%.2f", res.ranked.empty() ? 0.0 : res.ranked.back().cumulative_percent)
+                  << printfFinite("%.2f",
+                                  res.ranked.empty() ? 0.0 : res.ranked.back().cumulative_percent)
                   << " %)\n";
     }
     finishSummary(ctx, j, table + foot.render());

@@ -30,12 +30,6 @@ struct ViewshedState {
     std::string angle;
 };
 
-std::string fmtg(double v) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.10g", v);
-    return buf;
-}
-
 std::string fixed3(double v) {
     char buf[64];
     std::snprintf(buf, sizeof buf, "%.3f", v);

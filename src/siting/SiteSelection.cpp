@@ -17,19 +17,7 @@
 
 namespace lookfar {
 
-namespace {
-
-/// Passes the outer run's cancellation to an inner engine, and nothing else.
-class CancelOnly final : public Progress {
-  public:
-    explicit CancelOnly(const Progress& outer) : outer_(outer) {}
-    bool cancelled() const override { return outer_.cancelled(); }
-
-  private:
-    const Progress& outer_;
-};
-
-}  // namespace
+namespace {}  // namespace
 
 SiteSelectionResult selectSites(const Grid<float>& dem, const GridGeometry& geometry,
                                 const EarthModel& earth, const std::vector<Observer>& candidates,
@@ -95,7 +83,7 @@ SiteSelectionResult selectSites(const Grid<float>& dem, const GridGeometry& geom
         if (stop.load(std::memory_order_relaxed))
             continue;
         try {
-            CancelOnly cancel(progress);
+            CancelOnlyProgress cancel(progress);
             const ViewshedGrids vs =
                 computeViewshed(dem, geometry, earth, candidates[i], vopt, cancel);
             const CellWindow& win = vs.window;

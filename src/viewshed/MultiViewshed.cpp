@@ -20,16 +20,6 @@ namespace lookfar {
 
 namespace {
 
-/// Progress for the engine of one site: shows nothing, but passes the user's Ctrl-C through.
-class CancelOnly final : public Progress {
-  public:
-    explicit CancelOnly(const Progress& outer) : outer_(outer) {}
-    bool cancelled() const override { return outer_.cancelled(); }
-
-  private:
-    const Progress& outer_;
-};
-
 void merge(MultiViewshedResult& out, const ViewshedGrids& g) {
     const CellWindow& w = g.window;
     const int dem_width = out.count.width();
@@ -88,7 +78,7 @@ MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& ge
     progress.begin(n == 1 ? "viewshed" : "viewsheds of " + std::to_string(n) + " sites", n);
     std::atomic<int> done{0};
     std::atomic<bool> stop{false};
-    CancelOnly inner(progress);
+    CancelOnlyProgress inner(progress);
     auto one = [&](int i) {
         ViewshedGrids g = computeViewshed(dem, geometry, earth, observers[i], site_options, inner);
         out.sites[i] = summarizeViewshed(g.visible, g.window, geometry, observers[i]);

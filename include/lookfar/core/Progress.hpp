@@ -19,6 +19,16 @@ class Progress {
     virtual bool cancelled() const { return false; }
 };
 
+/// Passes an outer run's cancellation to an inner engine, and shows nothing of it.
+class CancelOnlyProgress final : public Progress {
+  public:
+    explicit CancelOnlyProgress(const Progress& outer) : outer_(outer) {}
+    bool cancelled() const override { return outer_.cancelled(); }
+
+  private:
+    const Progress& outer_;
+};
+
 /// A sink that shows nothing and is never cancelled.
 Progress& silentProgress();
 
