@@ -1,6 +1,7 @@
 #include "Common.hpp"
 
 #include <unistd.h>
+#include <strings.h>
 
 #include <cmath>
 #include <cstdio>
@@ -71,7 +72,9 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
             ->check(CLI::IsMember({"fast", "reference"}))
             ->group("Engine");
     }
-    app->add_option("--threads", o.threads, "worker threads (default: all cores)")
+    app->add_option("--threads", o.threads,
+                    "worker threads, for the engines and for compressing GeoTIFFs (default: all "
+                    "cores)")
         ->check(CLI::NonNegativeNumber)
         ->group("Engine");
     app->add_option("--summary", o.summary, "also write the summary as JSON to this file")
@@ -83,7 +86,7 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
     if (which & kOutputOptions) {
         app->add_option("--co", o.creation_options,
                         "GDAL creation option KEY=VALUE for output GeoTIFFs (repeatable; default "
-                        "tiled, DEFLATE, predictor)")
+                        "tiled, DEFLATE, predictor, compressed on every processor)")
             ->group("Output");
     }
 }
@@ -349,6 +352,12 @@ RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType 
     spec.crs_wkt = ctx.dem.crs.wkt;
     spec.metadata = rasterMetadata(ctx.run);
     spec.creation_options = ctx.options.creation_options;
+    // --threads also bounds GDAL's compression threads (the default compresses on every core).
+    bool threads_given = false;
+    for (const auto& co : spec.creation_options)
+        threads_given = threads_given || strncasecmp(co.c_str(), "NUM_THREADS=", 12) == 0;
+    if (ctx.options.threads > 0 && !threads_given)
+        spec.creation_options.push_back("NUM_THREADS=" + std::to_string(ctx.options.threads));
     return spec;
 }
 

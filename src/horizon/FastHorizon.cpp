@@ -1222,30 +1222,34 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
         const TileWorker finisher(in, d, acc, kernels);
         const long span = d.jmax - d.jmin + 1;
         const long batch_lines = static_cast<long>(kGroupLines) * kBatchGroups;
-        for (long j0 = d.jmin; j0 <= d.jmax; j0 += batch_lines) {
-            const long j1 = std::min(j0 + batch_lines - 1, d.jmax);
-            const bool last = j1 == d.jmax;
-            while (next_start < by_start.size() && (by_start[next_start].jmin <= j1 || last)) {
-                tiles.ptr[by_start[next_start].id] = tiles.acquire();
-                ++next_start;
+        // One parallel loop a batch: the line groups of this batch and the tiles that the
+        // previous batch completed (no line of this batch touches them), so the threads meet
+        // once a batch and the tiles fill the gaps the lines leave.
+        ready.clear();
+        for (long j0 = d.jmin;; j0 += batch_lines) {
+            const bool more_lines = j0 <= d.jmax;
+            const long j1 = more_lines ? std::min(j0 + batch_lines - 1, d.jmax) : j0 - 1;
+            const bool last = j1 >= d.jmax;
+            if (more_lines) {
+                while (next_start < by_start.size() && (by_start[next_start].jmin <= j1 || last)) {
+                    tiles.ptr[by_start[next_start].id] = tiles.acquire();
+                    ++next_start;
+                }
             }
-            const int groups = static_cast<int>((j1 - j0) / kGroupLines + 1);
-#pragma omp parallel for schedule(dynamic, 1)
-            for (int gi = 0; gi < groups; ++gi) {
-                lines.run(j0 + static_cast<long>(gi) * kGroupLines, j1, scratch[threadIndex()]);
-            }
-            ready.clear();
-            while (next_end < by_end.size() && (by_end[next_end].jmax <= j1 || last)) {
-                ready.push_back(by_end[next_end]);
-                ++next_end;
-            }
+            const int groups = more_lines ? static_cast<int>((j1 - j0) / kGroupLines + 1) : 0;
             const int n_ready = static_cast<int>(ready.size());
 #pragma omp parallel for schedule(dynamic, 1)
-            for (int ti = 0; ti < n_ready; ++ti) {
-                const TileInfo& info = ready[ti];
-                const int c0 = (info.id % tiles.ntx) * kTile, r0 = (info.id / tiles.ntx) * kTile;
-                finisher.run(tiles.ptr[info.id], c0, r0, std::min(kTile, w - c0),
-                             std::min(kTile, h - r0), *tile_scratch[threadIndex()]);
+            for (int item = 0; item < groups + n_ready; ++item) {
+                if (item < groups) {
+                    lines.run(j0 + static_cast<long>(item) * kGroupLines, j1,
+                              scratch[threadIndex()]);
+                } else {
+                    const TileInfo& info = ready[item - groups];
+                    const int c0 = (info.id % tiles.ntx) * kTile;
+                    const int r0 = (info.id / tiles.ntx) * kTile;
+                    finisher.run(tiles.ptr[info.id], c0, r0, std::min(kTile, w - c0),
+                                 std::min(kTile, h - r0), *tile_scratch[threadIndex()]);
+                }
             }
             for (const TileInfo& info : ready) {
                 const int c0 = (info.id % tiles.ntx) * kTile, r0 = (info.id / tiles.ntx) * kTile;
@@ -1255,6 +1259,13 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
                                    kTile, buf, buf + kTileCells);
                 }
                 tiles.release(info.id);
+            }
+            ready.clear();
+            if (!more_lines)
+                break;
+            while (next_end < by_end.size() && (by_end[next_end].jmax <= j1 || last)) {
+                ready.push_back(by_end[next_end]);
+                ++next_end;
             }
             throwIfCancelled(progress);
             const long done_lines = std::min(span, j1 - d.jmin + 1);

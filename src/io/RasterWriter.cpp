@@ -43,12 +43,10 @@ std::atomic<int> g_temp_counter{0};
 }  // namespace
 
 std::vector<std::string> defaultCreationOptions(PixelType type) {
-    return {"TILED=YES",
-            "BLOCKXSIZE=256",
-            "BLOCKYSIZE=256",
-            "COMPRESS=DEFLATE",
-            type == PixelType::Float32 ? "PREDICTOR=3" : "PREDICTOR=2",
-            "BIGTIFF=IF_SAFER"};
+    return {"TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256", "COMPRESS=DEFLATE",
+            type == PixelType::Float32 ? "PREDICTOR=3" : "PREDICTOR=2", "BIGTIFF=IF_SAFER",
+            // Blocks are compressed on every processor (the file's pixels are the same as on one).
+            "NUM_THREADS=ALL_CPUS"};
 }
 
 void checkOutputPath(const std::string& path, const std::vector<std::string>& inputs,

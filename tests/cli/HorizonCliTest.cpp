@@ -232,6 +232,29 @@ TEST(HorizonCliTest, IdenticalRastersForOneAndTwoThreads) {
     }
 }
 
+// The default compression of the N-band rasters (DEFLATE level 1 on every core) stores the same
+// pixels as DEFLATE level 6 on one thread; --co keys replace the defaults.
+TEST(HorizonCliTest, DefaultCompressionStoresTheSamePixels) {
+    ScratchDir dir;
+    const std::string fast = dir.file("fast.tif"), slow = dir.file("slow.tif");
+    runJson({"horizon", testRaster("demo_coast.tif"), "-o", fast, "--directions", "8"});
+    runJson({"horizon", testRaster("demo_coast.tif"), "-o", slow, "--directions", "8", "--co",
+             "ZLEVEL=6", "--co", "NUM_THREADS=1", "--threads", "1"});
+    GDALAllRegister();
+    for (const std::string& path : {fast, slow}) {
+        GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
+        ASSERT_NE(ds, nullptr) << path;
+        const char* c = GDALGetMetadataItem(ds, "COMPRESSION", "IMAGE_STRUCTURE");
+        EXPECT_STREQ(c ? c : "", "DEFLATE") << path;
+        GDALClose(ds);
+    }
+    const Raster a = readRaster(fast), b = readRaster(slow);
+    ASSERT_EQ(a.bands, 8);
+    ASSERT_EQ(b.bands, 8);
+    for (int i = 0; i < a.bands; ++i)
+        EXPECT_EQ(a.values[i], b.values[i]) << "band " << i;
+}
+
 // The memory rule (common practice, no source): peak memory must not grow with N. Each
 // band is written block by block, so 600 bands take no more memory than 8 (GDAL's block cache
 // would keep a block per band, 64 KiB each here: 37 MiB more for 600 bands).

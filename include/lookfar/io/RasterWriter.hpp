@@ -28,7 +28,8 @@ struct RasterSpec {
     std::string unit_type;                        ///< band unit type ("m", "deg"), optional
 };
 
-/// lookfar's default GeoTIFF creation options for a pixel type: tiled, DEFLATE, predictor.
+/// lookfar's default GeoTIFF creation options for a pixel type: tiled, DEFLATE, predictor,
+/// compressed on every processor.
 std::vector<std::string> defaultCreationOptions(PixelType type);
 
 /// Checks an output path before any work: its folder exists and is writable, it is not the
