@@ -344,6 +344,13 @@ struct Direction {
     std::vector<Crossing> crossings;
     std::vector<int> major_pos;
     NearField near;
+    // Projected grids: the refinement window of a tangent point t major steps away, by t.
+    struct Window {
+        int lo = 0, hi = -1;                             // crossings[lo … hi]
+        int da_lo = 0, da_hi = 0, dp_lo = 0, dp_hi = 0;  // extents of their cells' offsets
+        double dist_hi = 0;                              // distance of the last one
+    };
+    std::vector<Window> windows;
 };
 
 /// The crossings of a ray with `m` minor cells per major step (the direction's axes and sign):
@@ -454,6 +461,27 @@ void setUp(const EngineInput& in, int index, Direction& d) {
         while (n_near > 0 && d.crossings[n_near - 1].dist > in.options.reach_m)
             --n_near;
         d.near.assign(d.crossings.data(), n_near, d.major_cols, in.options.observer_height_m);
+        // The crossings within ± r major steps of each tangent point t (majors t − r … t + r,
+        // the minors between majors t − r − 1 and t + r + 1), beyond the near field.
+        const int* mp = d.major_pos.data();
+        const int r = in.options.refine_steps;
+        const int near_end = mp[k1];
+        d.windows.resize(d.A + 1);
+        for (int t = 0; t <= d.A; ++t) {
+            Direction::Window& wv = d.windows[t];
+            wv.lo = std::max(near_end, mp[std::max(t - r - 1, 0)] + 1);
+            wv.hi = mp[std::min(t + r + 1, d.A + 1)] - 1;
+            wv.da_lo = wv.dp_lo = std::numeric_limits<int>::max();
+            wv.da_hi = wv.dp_hi = std::numeric_limits<int>::min();
+            for (int i = wv.lo; i <= wv.hi; ++i) {
+                const Crossing& x = d.crossings[i];
+                wv.da_lo = std::min({wv.da_lo, x.da1, x.da2});
+                wv.da_hi = std::max({wv.da_hi, x.da1, x.da2});
+                wv.dp_lo = std::min({wv.dp_lo, x.dp1, x.dp2});
+                wv.dp_hi = std::max({wv.dp_hi, x.dp1, x.dp2});
+            }
+            wv.dist_hi = wv.hi >= wv.lo ? d.crossings[wv.hi].dist : 0;
+        }
     }
     const int x_first = d.xi.front(), x_last = d.xi.back();
     d.jmin = -static_cast<long>(std::max(x_first, x_last));
@@ -653,38 +681,42 @@ class FarRefiner {
         }
     }
 
-    // Projected grids: the crossings of the cell's ray within ± r major steps of `cand` (the
-    // majors cand − r … cand + r and the minors between majors cand − r − 1 and cand + r + 1),
-    // beyond the near field.
+    // Projected grids: the crossings of the cell's ray in the window of tangent point `cand`.
     void refineProjected(int col, int row, int cand, double ze, double& best_t,
                          double& best_d) const {
-        const int* mp = d_.major_pos.data();
-        const int near_end = mp[std::min(k_exact_ + 1, d_.A + 1)];
-        const int lo = std::max(near_end, mp[std::max(cand - refine_ - 1, 0)] + 1);
-        const int hi = mp[std::min(cand + refine_ + 1, d_.A + 1)] - 1;
-        const int a = d_.major_cols ? col : row, p = d_.major_cols ? row : col;
-        const float* z = dem_ + static_cast<std::ptrdiff_t>(row) * w_ + col;
+        const Direction::Window& wv = d_.windows[std::min(cand, d_.A)];
+        const int lo = wv.lo, hi = wv.hi;
         if (lo > hi)
             return;
+        const int a = d_.major_cols ? col : row, p = d_.major_cols ? row : col;
+        const float* z = dem_ + static_cast<std::ptrdiff_t>(row) * w_ + col;
         const Crossing* x = d_.crossings.data();
-        auto inside = [&](const Crossing& c) {
-            const int a1 = a + c.da1, p1 = p + c.dp1, a2 = a + c.da2, p2 = p + c.dp2;
-            return a1 >= 0 && a1 < d_.A && p1 >= 0 && p1 < d_.B && a2 >= 0 && a2 < d_.A &&
-                   p2 >= 0 && p2 < d_.B;
-        };
         double bt = best_t, bd = best_d;
-        // The offsets grow monotonically along the ray: when the window's first and last
-        // crossings are inside the grid and the reach, so is every one between them.
-        if (x[hi].dist <= reach_ && inside(x[lo]) && inside(x[hi])) {
+        if (wv.dist_hi <= reach_ && a + wv.da_lo >= 0 && a + wv.da_hi < d_.A && p + wv.dp_lo >= 0 &&
+            p + wv.dp_hi < d_.B && hi - lo < kMaxWindow) {
+            // Two passes without a data-dependent branch in the first: the largest tangent,
+            // then the nearest crossing that has it.
+            double tt[kMaxWindow];
+            double m = -kInf;
             for (int i = lo; i <= hi; ++i) {
                 const Crossing& c = x[i];
                 const double zs = (1 - c.w) * z[c.off1] + c.w * z[c.off2];
-                const double t = (zs - c.drop - ze) * c.inv_dist;  // NaN (no data) never wins
-                const bool better = t > bt;
-                bt = better ? t : bt;
-                bd = better ? c.dist : bd;
+                const double t = (zs - c.drop - ze) * c.inv_dist;
+                tt[i - lo] = t;
+                m = t > m ? t : m;  // NaN (no data) never wins
+            }
+            if (m > bt) {
+                int i = lo;
+                while (tt[i - lo] != m)
+                    ++i;
+                bt = m, bd = x[i].dist;
             }
         } else {
+            auto inside = [&](const Crossing& c) {
+                const int a1 = a + c.da1, p1 = p + c.dp1, a2 = a + c.da2, p2 = p + c.dp2;
+                return a1 >= 0 && a1 < d_.A && p1 >= 0 && p1 < d_.B && a2 >= 0 && a2 < d_.A &&
+                       p2 >= 0 && p2 < d_.B;
+            };
             for (int i = lo; i <= hi; ++i) {
                 const Crossing& c = x[i];
                 if (c.dist > reach_ || !inside(c))
@@ -697,6 +729,9 @@ class FarRefiner {
         }
         best_t = bt, best_d = bd;
     }
+
+    // Crossings in a window of ± refine_steps (≤ 8): at most 2r + 1 majors and 2r + 2 minors.
+    static constexpr int kMaxWindow = 4 * 8 + 4;
 
     const EngineInput& in_;
     const Direction& d_;
