@@ -1,5 +1,6 @@
 #include "lookfar/horizon/AsyncSink.hpp"
 
+#include <algorithm>
 #include <utility>
 
 namespace lookfar {
@@ -27,9 +28,12 @@ void AsyncHorizonSink::rethrowIfFailed() {
 void AsyncHorizonSink::push(Call&& call) {
     const std::size_t bytes = (call.angle.size() + call.distance.size()) * sizeof(float);
     std::unique_lock<std::mutex> lock(mutex_);
-    // The queue may always take one call, however large, so that no call waits forever.
-    changed_.wait(lock,
-                  [&] { return error_ || queue_.empty() || queued_bytes_ + bytes <= max_bytes_; });
+    // The bytes counted include the call being delivered. A call larger than the bound is taken
+    // when nothing else is queued or in delivery, so that no call waits forever: at most
+    // max(max_bytes, one call) is held.
+    changed_.wait(lock, [&] {
+        return error_ || (queue_.empty() && !busy_) || queued_bytes_ + bytes <= max_bytes_;
+    });
     rethrowIfFailed();
     queued_bytes_ += bytes;
     queue_.push_back(std::move(call));

@@ -3,8 +3,9 @@
 // (GeoTIFF compression) works while the engine goes on with the next cells instead of after them.
 //
 // The calls reach the inner sink in the order they were made, from that one thread. Rectangles
-// are copied (packed, stride = width) into a queue bounded by `max_bytes`: the engine waits when
-// the sink falls that far behind, so memory stays bounded whatever N and the DEM's size.
+// are copied (packed, stride = width) into a queue bounded by `max_bytes` (the call being
+// delivered included; a single larger call is let through alone): the engine waits when the sink
+// falls that far behind, so memory stays bounded whatever N and the DEM's size.
 #include <condition_variable>
 #include <cstddef>
 #include <deque>
