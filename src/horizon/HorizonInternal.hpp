@@ -32,11 +32,19 @@ class GridMetric {
     bool geographic() const { return geographic_; }
     /// Signed metres east per column step at (continuous) row `row`.
     double eastPerCol(double row) const {
-        return geographic_ ? lookup(ncos_, row) * east_scale_ : east_scale_;
+        if (!geographic_)
+            return east_scale_;
+        double ncos, m;
+        lookup(row, ncos, m);
+        return ncos * east_scale_;
     }
     /// Signed metres north per row step at row `row`.
     double northPerRow(double row) const {
-        return geographic_ ? lookup(m_, row) * north_scale_ : north_scale_;
+        if (!geographic_)
+            return north_scale_;
+        double ncos, m;
+        lookup(row, ncos, m);
+        return m * north_scale_;
     }
     /// Offsets (e, n) in metres from (c0, r0) to (c1, r1).
     void offsets(double c0, double r0, double c1, double r1, double& e, double& n) const {
@@ -45,28 +53,41 @@ class GridMetric {
             n = (r1 - r0) * north_scale_;
             return;
         }
-        double mid = 0.5 * (r0 + r1);
-        e = (c1 - c0) * lookup(ncos_, mid) * east_scale_;
-        n = (r1 - r0) * lookup(m_, mid) * north_scale_;
+        double ncos, m;
+        lookup(0.5 * (r0 + r1), ncos, m);
+        e = (c1 - c0) * ncos * east_scale_;
+        n = (r1 - r0) * m * north_scale_;
     }
 
   private:
-    double lookup(const std::vector<double>& table, double row) const {
-        double x = (row - row_first_) * 2.0;
-        if (x <= 0)
-            return table.front();
-        std::size_t i = static_cast<std::size_t>(x);
-        if (i + 1 >= table.size())
-            return table.back();
-        double f = x - static_cast<double>(i);
-        return table[i] + f * (table[i + 1] - table[i]);
+    // N(φ) cos φ and M(φ) at a continuous row, interpolated linearly between half rows (one
+    // index for both: this runs once per sample on geographic grids).
+    void lookup(double row, double& ncos, double& m) const {
+        const double x = (row - row_first_) * 2.0;
+        const std::size_t last = table_.size() / 2 - 1;
+        std::size_t i = 0;
+        double f = 0;
+        if (x > 0) {
+            i = static_cast<std::size_t>(x);
+            if (i >= last) {
+                i = last, f = 0;
+            } else {
+                f = x - static_cast<double>(i);
+            }
+        }
+        const double* t = table_.data() + 2 * i;
+        if (f == 0) {
+            ncos = t[0], m = t[1];
+            return;
+        }
+        ncos = t[0] + f * (t[2] - t[0]);
+        m = t[1] + f * (t[3] - t[1]);
     }
     bool geographic_ = false;
     double east_scale_ = 1;   // projected: gt1 · unit; geographic: gt1 in radians
     double north_scale_ = 1;  // projected: gt5 · unit; geographic: gt5 in radians
     double row_first_ = -1;
-    std::vector<double> m_;     // M(φ) every half row from row_first_
-    std::vector<double> ncos_;  // N(φ) cos φ every half row
+    std::vector<double> table_;  // N(φ) cos φ, M(φ) in pairs, every half row from row_first_
 };
 
 /// The exact ray of the reference engine from the centre of cell (c0, r0).

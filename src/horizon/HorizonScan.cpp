@@ -47,12 +47,11 @@ GridMetric::GridMetric(const GridGeometry& g) : geographic_(g.geographic()) {
     north_scale_ = gt[5] * kDegToRad;
     row_first_ = -1.0;
     const int entries = 2 * (g.height() + 1) + 1;  // rows −1 … H every half row
-    m_.resize(entries);
-    ncos_.resize(entries);
+    table_.resize(2 * static_cast<std::size_t>(entries));
     for (int i = 0; i < entries; ++i) {
         double lat = g.latitudeOfRow(row_first_ + 0.5 * i);
-        m_[i] = g.ellipsoid().meridianRadius(lat);
-        ncos_[i] = g.ellipsoid().primeVerticalRadius(lat) * std::cos(lat * kDegToRad);
+        table_[2 * i] = g.ellipsoid().primeVerticalRadius(lat) * std::cos(lat * kDegToRad);
+        table_[2 * i + 1] = g.ellipsoid().meridianRadius(lat);
     }
 }
 
