@@ -629,29 +629,39 @@ class FarRefiner {
         double t, dist;
     };
 
-    // Keeps the sample if its tangent beats the best so far; false once beyond reach.
-    bool consider(Eye& e, double dist, double drop, double z) const {
-        if (dist > reach_)
-            return false;
-        const double rise = z - drop - e.ze;  // NaN (no data) never wins
-        if (rise > e.t * dist) {              // t > best, division only on improvement
-            e.t = rise / dist;
-            e.dist = dist;
-        }
-        return true;
-    }
-
-    bool considerGeo(Eye& e, double ta, double tp, double z) const {
-        const double dc = d_.major_cols ? ta : tp, dr = d_.major_cols ? tp : ta;
-        double east, north;
-        in_.metric.offsets(e.col, e.row, e.col + dc, e.row + dr, east, north);
-        return consider(e, groundDistance(east, north), in_.curvature.drop(east, north), z);
-    }
-
     // Geographic grids: major crossings t ∈ [t0, t1] and minor crossings at t in [s0, s1) of the
-    // cell's own ray.
+    // cell's own ray. (Everything the samples need is held in locals: this runs for every cell
+    // and direction.)
     void exactGeographic(Eye& e, int t0, int t1, double s0, double s1) const {
         const int A = d_.A, B = d_.B, sign = d_.sign;
+        const bool mc = d_.major_cols;
+        const float* dem = dem_;
+        const std::size_t w = static_cast<std::size_t>(w_);
+        const GridMetric& metric = in_.metric;
+        const Curvature cv = in_.curvature;
+        const double reach = reach_, ze = e.ze;
+        const double col0 = e.col, row0 = e.row;
+        double bt = e.t, bd = e.dist;
+        // The sample (da, dp) major and minor cells from the cell, terrain z: false once beyond
+        // reach.
+        auto take = [&](double da, double dp, double z) {
+            const double dc = mc ? da : dp, dr = mc ? dp : da;
+            double east, north;
+            metric.offsets(col0, row0, col0 + dc, row0 + dr, east, north);
+            const double dist = groundDistance(east, north);
+            if (dist > reach)
+                return false;
+            const double rise = z - cv.drop(east, north) - ze;  // NaN (no data) never wins
+            if (rise > bt * dist) {  // t > best, division only on improvement
+                bt = rise / dist;
+                bd = dist;
+            }
+            return true;
+        };
+        auto at = [&](int a, int p) {
+            return mc ? dem[static_cast<std::size_t>(p) * w + a]
+                      : dem[static_cast<std::size_t>(a) * w + p];
+        };
         for (int t = t0; t <= t1; ++t) {
             const int a1 = e.a + sign * t;
             if (a1 < 0 || a1 >= A)
@@ -662,35 +672,34 @@ class FarRefiner {
             const int p1 = e.p + dp;
             if (p1 < 0 || p1 >= B || (f > 0 && p1 + 1 >= B))
                 break;
-            const double z =
-                f > 0 ? (1 - f) * ground(a1, p1) + f * ground(a1, p1 + 1) : ground(a1, p1);
-            if (!considerGeo(e, sign * t, dp + f, z))
+            const double z = f > 0 ? (1 - f) * at(a1, p1) + f * at(a1, p1 + 1) : at(a1, p1);
+            if (!take(sign * t, dp + f, z))
                 break;
         }
-        if (e.m == 0.0)
-            return;
-        const double am = std::fabs(e.m);
-        const int sigma = sign * e.m > 0 ? 1 : -1;
-        for (int u = std::max(1, ceilInt(s0 * am - 1e-12));; ++u) {
-            const double tu = u / am;
-            if (!(tu < s1))
-                break;
-            if (nearWhole(tu) || tu < s0)
-                continue;  // on a major crossing, or before the window
-            const int p1 = e.p + sigma * u;
-            if (p1 < 0 || p1 >= B)
-                break;
-            int da;
-            double f;
-            snapFraction(sign * tu, da, f);
-            const int a1 = e.a + da;
-            if (a1 < 0 || a1 >= A || (f > 0 && a1 + 1 >= A))
-                break;
-            const double z =
-                f > 0 ? (1 - f) * ground(a1, p1) + f * ground(a1 + 1, p1) : ground(a1, p1);
-            if (!considerGeo(e, da + f, sigma * u, z))
-                break;
+        if (e.m != 0.0) {
+            const double am = std::fabs(e.m);
+            const int sigma = sign * e.m > 0 ? 1 : -1;
+            for (int u = std::max(1, ceilInt(s0 * am - 1e-12));; ++u) {
+                const double tu = u / am;
+                if (!(tu < s1))
+                    break;
+                if (nearWhole(tu) || tu < s0)
+                    continue;  // on a major crossing, or before the window
+                const int p1 = e.p + sigma * u;
+                if (p1 < 0 || p1 >= B)
+                    break;
+                int da;
+                double f;
+                snapFraction(sign * tu, da, f);
+                const int a1 = e.a + da;
+                if (a1 < 0 || a1 >= A || (f > 0 && a1 + 1 >= A))
+                    break;
+                const double z = f > 0 ? (1 - f) * at(a1, p1) + f * at(a1 + 1, p1) : at(a1, p1);
+                if (!take(da + f, sigma * u, z))
+                    break;
+            }
         }
+        e.t = bt, e.dist = bd;
     }
 
     // Projected grids: the crossings of the cell's ray in the window of tangent point `cand`.
