@@ -1,7 +1,8 @@
 // lookfar_bench horizon: speed and memory of `lookfar horizon` (issue 4's targets).
 //
 // Seeded fractal DEMs (β 2.2, 0–800 m, 10 m cells, seed 4004) of 2048² and 4096² cells; N = 8,
-// 32 and 128 directions; unlimited reach and a 5 km reach; eye 1.7 m above every cell:
+// 32 and 128 directions; unlimited reach and a 5 km reach; eye 1.7 m above every cell (and the
+// 2048² terrain on a geographic grid of 1″ cells, N = 32, engine only):
 //   - the fast engine in memory (only the sky-view factor accumulated, no per-direction output):
 //     cell-directions per second, the median of the runs (3 runs up to 2048² × 8 cell-directions,
 //     1 run above: the whole set takes about 20 minutes on 2 cores);
@@ -119,6 +120,7 @@ nlohmann::json benchHorizon(const BenchArgs& args) {
                     const double t = median(times);
                     engine_s[{size, static_cast<int>(ri), n}] = t;
                     engine_rows.push_back({{"cells_per_side", size},
+                                           {"grid", "projected, 10 m cells"},
                                            {"directions", n},
                                            {"reach_m", reachJson(reaches[ri])},
                                            {"runs_s", times},
@@ -126,6 +128,36 @@ nlohmann::json benchHorizon(const BenchArgs& args) {
                                            {"cell_directions_per_s", cells * n / t}});
                 }
             }
+        }
+
+        // The same terrain on a geographic grid of 1″ cells (about 31 m × 20 m at 51° N, the
+        // spacing of the common global DEMs): the exact samples then measure every distance
+        // with the ellipsoid's radii of their own rows.
+        if (size == 2048) {
+            const Dem dem = readDem(dem_path);
+            const double arcsec = 1.0 / 3600.0;
+            const GridGeometry geo(size, size, {-4.0, arcsec, 0, 51.0, 0, -arcsec}, true, 1.0,
+                                   Ellipsoid::wgs84());
+            const EarthModel earth(EarthShape::Ellipsoid, Ellipsoid::wgs84());
+            const int n = 32;
+            HorizonOptions o;
+            o.directions = n;
+            o.observer_height_m = 1.7;
+            o.latitude_deg = geo.latitudeOfRow(size / 2.0);
+            o.want_svf = true;
+            const HorizonScan scan(dem.z, geo, earth, o);
+            std::fprintf(stderr, "  engine %d² N=%d geographic 1″\n", size, n);
+            const double t = timeIt([&] {
+                SummaryOnlySink sink;
+                scan.run(sink);
+            });
+            engine_rows.push_back({{"cells_per_side", size},
+                                   {"grid", "geographic, 1 arc-second cells at 51° N"},
+                                   {"directions", n},
+                                   {"reach_m", nullptr},
+                                   {"runs_s", {t}},
+                                   {"median_s", t},
+                                   {"cell_directions_per_s", cells * n / t}});
         }
 
         // The whole command with --svf, as users run it.
