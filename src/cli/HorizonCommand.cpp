@@ -237,11 +237,16 @@ void runGrid(const HorizonState& st) {
     HorizonSummary summary;
     {
         // The rasters are compressed and written on a thread of their own while the engine
-        // computes the next cells.
-        AsyncHorizonSink sink(rasters);
+        // computes the next cells; with --threads 1 on the engine's thread, so that one core
+        // is all the command uses.
         const HorizonScan scan(ctx.dem.z, ctx.dem.geometry, ctx.earth, opt);
-        summary = scan.run(sink, *ctx.progress);
-        sink.finish();
+        if (ctx.options.threads == 1) {
+            summary = scan.run(rasters, *ctx.progress);
+        } else {
+            AsyncHorizonSink sink(rasters);
+            summary = scan.run(sink, *ctx.progress);
+            sink.finish();
+        }
     }
     ctx.dem.z = Grid<float>();  // the elevations are no longer needed
 
