@@ -5,7 +5,7 @@
 // 2048² terrain on a geographic grid of 1″ cells, N = 32, engine only):
 //   - the fast engine in memory (only the sky-view factor accumulated, no per-direction output):
 //     cell-directions per second, the median of the runs (3 runs up to 2048² × 8 cell-directions,
-//     1 run above: the whole set takes about 20 minutes on 2 cores);
+//     1 run above: the whole set takes about 15 minutes on 2 cores);
 //   - the whole command with --svf as a child process: wall time and peak resident memory;
 //   - the whole command with every output (-o, --distance, --svf, --dip; without --distance for
 //     N = 128, to keep the run short): peak resident memory against the bound DEM bytes +
