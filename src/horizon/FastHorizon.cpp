@@ -703,8 +703,9 @@ class FarRefiner {
     }
 
     // Projected grids: the crossings of the cell's ray in the window of tangent point `cand`.
-    void refineProjected(int col, int row, int cand, double ze, double& best_t,
-                         double& best_d) const {
+    __attribute__((always_inline)) inline void refineProjected(int col, int row, int cand,
+                                                               double ze, double& best_t,
+                                                               double& best_d) const {
         const Direction::Window& wv = d_.windows[std::min(cand, d_.A)];
         const int lo = wv.lo, hi = wv.hi;
         if (lo > hi)
@@ -751,6 +752,35 @@ class FarRefiner {
         best_t = bt, best_d = bd;
     }
 
+  public:
+    /// The far field of every cell that line L answers for, into the tiles (projected grids):
+    /// refineProjected for each, with the line's loop around it.
+    void recordProjected(const LineBuf& L, const Direction& d, double eye_h, Tiles& tiles) const {
+        const int sign = d.sign;
+        const bool mc = d.major_cols;
+        const int* xi = d.xi.data();
+        for (int k = 0; k < L.n; ++k) {
+            const int cu = L.cand_up[k], cd = L.cand_dn[k];
+            if (cu < 0 && cd < 0)
+                continue;
+            const int a = sign > 0 ? L.a_hi - k : L.a_lo + k;
+            const int q = static_cast<int>(L.j + xi[a]);
+            for (int side = 0; side < 2; ++side) {
+                const int cand = side ? cd : cu;
+                if (cand < 0)
+                    continue;
+                const int p = q - side;
+                const float g = side ? L.g_dn[k] : L.g_up[k];
+                const int col = mc ? a : p, row = mc ? p : a;
+                double t = -kInf, dist = 0;
+                refineProjected(col, row, cand, static_cast<double>(g) + eye_h, t, dist);
+                if (t > -kInf)
+                    tiles.putFar(col, row, static_cast<float>(t), static_cast<float>(dist));
+            }
+        }
+    }
+
+  private:
     // Crossings in a window of ± refine_steps (≤ 8): at most 2r + 1 majors and 2r + 2 minors.
     static constexpr int kMaxWindow = 4 * 8 + 4;
 
@@ -1049,6 +1079,11 @@ class LineWorker {
 
     // The exact samples around each cell's tangent point, into the tiles.
     void record(const Scratch& sc) const {
+        if (!d_.geographic) {
+            for (int i = 0; i < kGroupLines; ++i)
+                refiner_.recordProjected(sc.lines[i], d_, eye_h_, tiles_);
+            return;
+        }
         for (int i = 0; i < kGroupLines; ++i) {
             const LineBuf& L = sc.lines[i];
             for (int k = 0; k < L.n; ++k) {
