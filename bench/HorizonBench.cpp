@@ -143,7 +143,8 @@ nlohmann::json benchHorizon(const BenchArgs& args) {
             HorizonOptions o;
             o.directions = n;
             o.observer_height_m = 1.7;
-            o.latitude_deg = geo.latitudeOfRow(size / 2.0);
+            o.latitude_deg =
+                geo.latitudeOfRow((size - 1) / 2.0);  // the centre, as the CLI takes it
             o.want_svf = true;
             const HorizonScan scan(dem.z, geo, earth, o);
             std::fprintf(stderr, "  engine %d² N=%d geographic 1″\n", size, n);
