@@ -7,6 +7,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "../tests/support/ChildRun.hpp"
 #include "lookfar/core/Grid.hpp"
 
 namespace lookfar::bench {
@@ -18,15 +19,10 @@ struct BenchArgs {
     bool quick = false;             ///< --quick: smallest sizes only (for a smoke run)
 };
 
-struct ChildRun {
-    double wall_s = 0;
-    std::int64_t peak_rss_bytes = 0;
-    int exit_code = 0;
-};
-
-/// Runs a command as a child process (stdout/stderr to /dev/null) and measures its wall time
-/// and peak resident memory (getrusage of the child).
-ChildRun runChild(const std::vector<std::string>& argv);
+/// A command run as a child process: its wall time and peak resident memory (shared with the
+/// tests).
+using testing::ChildRun;
+using testing::runChild;
 /// Median of the values.
 double median(std::vector<double> values);
 /// Peak resident memory of this process so far, bytes.

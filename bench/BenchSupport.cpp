@@ -1,7 +1,4 @@
 #include <sys/resource.h>
-#include <sys/wait.h>
-#include <fcntl.h>
-#include <unistd.h>
 
 #include <algorithm>
 #include <cstdio>
@@ -12,30 +9,6 @@
 #include "lookfar/io/RasterWriter.hpp"
 
 namespace lookfar::bench {
-
-ChildRun runChild(const std::vector<std::string>& argv) {
-    ChildRun run;
-    auto t0 = std::chrono::steady_clock::now();
-    pid_t pid = fork();
-    if (pid == 0) {
-        int devnull = open("/dev/null", O_WRONLY);
-        dup2(devnull, STDOUT_FILENO);
-        dup2(devnull, STDERR_FILENO);
-        std::vector<char*> cargs;
-        for (const auto& a : argv)
-            cargs.push_back(const_cast<char*>(a.c_str()));
-        cargs.push_back(nullptr);
-        execv(cargs[0], cargs.data());
-        _exit(127);
-    }
-    int status = 0;
-    struct rusage ru {};
-    wait4(pid, &status, 0, &ru);
-    run.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-    run.peak_rss_bytes = static_cast<std::int64_t>(ru.ru_maxrss) * 1024;
-    run.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
-    return run;
-}
 
 double median(std::vector<double> v) {
     if (v.empty())

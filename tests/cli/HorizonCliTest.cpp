@@ -1,11 +1,7 @@
 // `lookfar horizon` run on the built binary: outside values through the whole tool (REFERENCES.md
 // rows in the comments), the layout of its outputs, and the bad-input rules of DESIGN.md.
-#include <fcntl.h>
 #include <gdal.h>
 #include <gtest/gtest.h>
-#include <sys/resource.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include <nlohmann/json.hpp>
 
@@ -15,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "../support/ChildRun.hpp"
 #include "../support/CliRunner.hpp"
 
 using namespace lookfar::testing;
@@ -272,23 +269,9 @@ TEST(HorizonCliTest, PeakMemoryDoesNotGrowWithDirections) {
                                          "--directions",
                                          n,
                                          "--quiet"};
-        pid_t pid = fork();
-        if (pid == 0) {
-            int devnull = open("/dev/null", O_WRONLY);
-            dup2(devnull, STDOUT_FILENO);
-            dup2(devnull, STDERR_FILENO);
-            std::vector<char*> argv;
-            for (auto& a : args)
-                argv.push_back(const_cast<char*>(a.c_str()));
-            argv.push_back(nullptr);
-            execv(argv[0], argv.data());
-            _exit(127);
-        }
-        int status = 0;
-        struct rusage ru {};
-        wait4(pid, &status, 0, &ru);
-        EXPECT_TRUE(WIFEXITED(status) && WEXITSTATUS(status) == 0) << n;
-        return ru.ru_maxrss / 1024.0;
+        const ChildRun run = runChild(args);
+        EXPECT_EQ(run.exit_code, 0) << n;
+        return run.peak_rss_bytes / (1024.0 * 1024.0);
     };
     const double few = peakMiB("8"), many = peakMiB("600");
     EXPECT_LT(many - few, 16.0) << few << " MiB for 8 directions, " << many << " for 600";
