@@ -595,30 +595,20 @@ class FarRefiner {
           k_exact_(in.options.exact_steps),
           refine_(in.options.refine_steps) {}
 
-    /// The largest tangent among those samples of the ray of cell (col, row) with the eye at
-    /// ze, `steps` major steps from the tangent point: t = −∞ when none has data.
-    void refine(int col, int row, int steps, double ze, double& t, double& dist) const {
-        t = -kInf, dist = 0;
-        if (d_.geographic) {
-            Eye e;
-            e.a = d_.major_cols ? col : row, e.p = d_.major_cols ? row : col;
-            e.col = col, e.row = row;
-            e.ze = ze;
-            e.m = d_.m_row[row];
-            e.t = t, e.dist = dist;
-            const int w0 = std::max(k_exact_ + 1, steps - refine_);
-            const int w1 = steps + refine_;
-            exactGeographic(e, w0, w1, std::max(w0 - 1, k_exact_ + 1), w1 + 1.0);
-            t = e.t, dist = e.dist;
-        } else {
-            refineProjected(col, row, steps, ze, t, dist);
-        }
-    }
-
   private:
-    float ground(int a, int p) const {
-        return d_.major_cols ? dem_[static_cast<std::size_t>(p) * w_ + a]
-                             : dem_[static_cast<std::size_t>(a) * w_ + p];
+    // Geographic grids: the largest tangent among the samples of the ray of cell (col, row)
+    // with the eye at ze, `steps` major steps from the tangent point (t = −∞: none has data).
+    void refineGeographic(int col, int row, int steps, double ze, double& t, double& dist) const {
+        Eye e;
+        e.a = d_.major_cols ? col : row, e.p = d_.major_cols ? row : col;
+        e.col = col, e.row = row;
+        e.ze = ze;
+        e.m = d_.m_row[row];
+        e.t = t, e.dist = dist;
+        const int w0 = std::max(k_exact_ + 1, steps - refine_);
+        const int w1 = steps + refine_;
+        exactGeographic(e, w0, w1, std::max(w0 - 1, k_exact_ + 1), w1 + 1.0);
+        t = e.t, dist = e.dist;
     }
 
     struct Eye {
@@ -753,12 +743,23 @@ class FarRefiner {
     }
 
   public:
-    /// The far field of every cell that line L answers for, into the tiles (projected grids):
-    /// refineProjected for each, with the line's loop around it.
-    void recordProjected(const LineBuf& L, const Direction& d, double eye_h, Tiles& tiles) const {
-        const int sign = d.sign;
-        const bool mc = d.major_cols;
-        const int* xi = d.xi.data();
+    /// The far field of every cell that line L answers for (its upper cell q and lower cell
+    /// q − 1 at each sample), into the tiles: the exact samples of each cell's ray around its
+    /// tangent point.
+    void recordLine(const LineBuf& L, Tiles& tiles) const {
+        if (d_.geographic)
+            recordLineT<true>(L, tiles);
+        else
+            recordLineT<false>(L, tiles);
+    }
+
+  private:
+    template <bool kGeo>
+    void recordLineT(const LineBuf& L, Tiles& tiles) const {
+        const int sign = d_.sign;
+        const bool mc = d_.major_cols;
+        const int* xi = d_.xi.data();
+        const double eye_h = in_.options.observer_height_m;
         for (int k = 0; k < L.n; ++k) {
             const int cu = L.cand_up[k], cd = L.cand_dn[k];
             if (cu < 0 && cd < 0)
@@ -772,8 +773,12 @@ class FarRefiner {
                 const int p = q - side;
                 const float g = side ? L.g_dn[k] : L.g_up[k];
                 const int col = mc ? a : p, row = mc ? p : a;
+                const double ze = static_cast<double>(g) + eye_h;
                 double t = -kInf, dist = 0;
-                refineProjected(col, row, cand, static_cast<double>(g) + eye_h, t, dist);
+                if (kGeo)
+                    refineGeographic(col, row, cand, ze, t, dist);
+                else
+                    refineProjected(col, row, cand, ze, t, dist);
                 if (t > -kInf)
                     tiles.putFar(col, row, static_cast<float>(t), static_cast<float>(dist));
             }
@@ -1079,30 +1084,8 @@ class LineWorker {
 
     // The exact samples around each cell's tangent point, into the tiles.
     void record(const Scratch& sc) const {
-        if (!d_.geographic) {
-            for (int i = 0; i < kGroupLines; ++i)
-                refiner_.recordProjected(sc.lines[i], d_, eye_h_, tiles_);
-            return;
-        }
-        for (int i = 0; i < kGroupLines; ++i) {
-            const LineBuf& L = sc.lines[i];
-            for (int k = 0; k < L.n; ++k) {
-                const int a = d_.sign > 0 ? L.a_hi - k : L.a_lo + k;
-                const int q = static_cast<int>(L.j + d_.xi[a]);
-                if (L.cand_up[k] >= 0)
-                    put(a, q, L.cand_up[k], L.g_up[k]);
-                if (L.cand_dn[k] >= 0)
-                    put(a, q - 1, L.cand_dn[k], L.g_dn[k]);
-            }
-        }
-    }
-
-    void put(int a, int p, int steps, float ground) const {
-        const int col = d_.major_cols ? a : p, row = d_.major_cols ? p : a;
-        double t, dist;
-        refiner_.refine(col, row, steps, static_cast<double>(ground) + eye_h_, t, dist);
-        if (t > -kInf)
-            tiles_.putFar(col, row, static_cast<float>(t), static_cast<float>(dist));
+        for (int i = 0; i < kGroupLines; ++i)
+            refiner_.recordLine(sc.lines[i], tiles_);
     }
 
     const Direction& d_;
