@@ -54,9 +54,18 @@
 // samples: never above the reference, equal to it when the reference's horizon sample lies in the
 // near field or beside the tangent point (the tests measure how often).
 //
+// Skipping the far samples. The near field is taken first. The line's own horizon, seen from the
+// cell's eye at its major position, is t_L = (Z_P − Z_E)/(s_P − s_E) + 2c s_E; the ray runs at most
+// half a cell beside the line, so at d ≥ (K + 1) steps its samples around P differ from the
+// line's by about |lateral slope| / (2(K + 1)) in tangent: a few thousandths. When t_L is more
+// than kFarMargin = 0.05 (≈ 3°) below the near field's best, the far samples are not taken: on
+// the benchmark's terrain that is four cells in five, and the agreement with the reference
+// changed by one cell-direction in 115 940 (docs/horizon.md).
+//
 // The near field is the bulk of the arithmetic and is the same for every cell of a row: on
 // projected grids the crossings sit at the same offsets from every cell, so a row of cells is
-// done at once, 8 cells a vector (AVX2 where the processor has it), each crossing as two loads
+// done at once, 8 or 16 cells a vector (AVX2 or AVX-512 where the processor has them, with the
+// same results), each crossing as two loads
 // and a few multiply-adds with no branch. The heights are differenced before they are weighted
 // ((z₁ − z₀) + w (z₂ − z₁) − (h + drop), z₀ the cell's ground), so single precision loses under
 // 1e-7 of the rise. Cells whose near field leaves the grid take the same samples one by one,
@@ -64,10 +73,10 @@
 //
 // No data. A direction has data when an exact sample with data lies inside the grid within reach.
 //
-// Output. Tiles of cells (the 128² GeoTIFF block) first receive each cell's tangent point from
-// its line; once every line that answers for a tile is done, the tile's exact samples are taken,
-// its angles and distances finished and handed to the sink: only a band of tiles along the current
-// lines is in memory, whatever N.
+// Output. Tiles of cells (the 128² GeoTIFF block) take their cells' near fields one batch of lines
+// before the first line that answers for them; each line then brings its cells' far samples; once
+// every line that answers for a tile is done, its angles and distances are finished and handed to
+// the sink: only a band of tiles along the current lines is in memory, whatever N.
 //
 // Geographic grids: the lines' direction in cell space uses the cell aspect of the middle row and
 // their distance adds up the ground length of each step at its own row; the exact samples of a
@@ -102,6 +111,9 @@ constexpr double kInf = std::numeric_limits<double>::infinity();
 constexpr float kInfF = std::numeric_limits<float>::infinity();
 constexpr float kNaNf = std::numeric_limits<float>::quiet_NaN();
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+// A cell's exact samples around its line's tangent point are taken unless the tangent of the
+// line's horizon, seen from the cell's eye, is more than this below the cell's near field.
+constexpr float kFarMargin = 0.05f;
 
 /// Splits x into floor and fraction, treating fractions within 1e-9 of 0 or 1 as exact (so that
 /// rays along grid diagonals do not read a neighbour with a weight of 1e-16).
@@ -191,22 +203,31 @@ struct NearField {
 #pragma GCC diagnostic ignored "-Wpsabi"
 typedef float V8 __attribute__((vector_size(32)));
 
-inline V8 load8(const float* p) {
-    V8 v;
+typedef float V16 __attribute__((vector_size(64)));
+
+template <typename V>
+__attribute__((always_inline)) inline V loadV(const float* p) {
+    V v;
     std::memcpy(&v, p, sizeof v);
     return v;
 }
-inline void store8(float* p, V8 v) {
+template <typename V>
+__attribute__((always_inline)) inline void storeV(float* p, V v) {
     std::memcpy(p, &v, sizeof v);
 }
-inline V8 splat8(float x) {
-    return V8{x, x, x, x, x, x, x, x};
+template <typename V>
+__attribute__((always_inline)) inline V splatV(float x) {
+    return V{} + x;
 }
 
-/// Largest tangent over the near field for the `n` cells starting at `z` (a run of one DEM row
-/// whose near field lies inside the grid): best_t (−∞ when no sample has data) and its distance.
-__attribute__((always_inline)) inline void nearBody(const float* z, int n, const NearField& f,
-                                                    float* best_t, float* best_d) {
+/// Largest tangent over the near field for the cells [i, n) of the run starting at `z` (a run of
+/// one DEM row whose near field lies inside the grid), two vectors of V (L lanes) at a time while
+/// 2L cells are left: best_t (−∞ when no sample has data) and its distance. Returns where it
+/// stopped.
+template <typename V, int L>
+__attribute__((always_inline)) inline int nearBlocks(const float* z, int i, int n,
+                                                     const NearField& f, float* best_t,
+                                                     float* best_d) {
     const int nx = f.n;
     const std::ptrdiff_t* o1 = f.off1.data();
     const std::ptrdiff_t* o2 = f.off2.data();
@@ -214,20 +235,19 @@ __attribute__((always_inline)) inline void nearBody(const float* z, int n, const
     const float* hd = f.hd.data();
     const float* inv = f.inv.data();
     const float* dist = f.dist.data();
-    int i = 0;
-    for (; i + 16 <= n; i += 16) {
+    for (; i + 2 * L <= n; i += 2 * L) {
         const float* zi = z + i;
-        const V8 g0 = load8(zi), g1 = load8(zi + 8);
-        V8 b0 = splat8(-kInfF), b1 = b0, d0 = splat8(0.0f), d1 = d0;
+        const V g0 = loadV<V>(zi), g1 = loadV<V>(zi + L);
+        V b0 = splatV<V>(-kInfF), b1 = b0, d0 = splatV<V>(0.0f), d1 = d0;
         for (int k = 0; k < nx; ++k) {
             const float* p = zi + o1[k];
             const float* q = zi + o2[k];
-            const V8 a0 = load8(p), a1 = load8(p + 8);
-            const V8 c0 = load8(q), c1 = load8(q + 8);
-            const V8 w = splat8(wt[k]), h = splat8(hd[k]), iv = splat8(inv[k]),
-                     dk = splat8(dist[k]);
-            const V8 t0 = ((a0 - g0) + w * (c0 - a0) - h) * iv;
-            const V8 t1 = ((a1 - g1) + w * (c1 - a1) - h) * iv;
+            const V a0 = loadV<V>(p), a1 = loadV<V>(p + L);
+            const V c0 = loadV<V>(q), c1 = loadV<V>(q + L);
+            const V w = splatV<V>(wt[k]), h = splatV<V>(hd[k]), iv = splatV<V>(inv[k]),
+                    dk = splatV<V>(dist[k]);
+            const V t0 = ((a0 - g0) + w * (c0 - a0) - h) * iv;
+            const V t1 = ((a1 - g1) + w * (c1 - a1) - h) * iv;
             const auto m0 = t0 > b0;  // NaN (no data) never wins; ties keep the nearer sample
             const auto m1 = t1 > b1;
             b0 = m0 ? t0 : b0;
@@ -235,23 +255,46 @@ __attribute__((always_inline)) inline void nearBody(const float* z, int n, const
             d0 = m0 ? dk : d0;
             d1 = m1 ? dk : d1;
         }
-        store8(best_t + i, b0);
-        store8(best_t + i + 8, b1);
-        store8(best_d + i, d0);
-        store8(best_d + i + 8, d1);
+        storeV(best_t + i, b0);
+        storeV(best_t + i + L, b1);
+        storeV(best_d + i, d0);
+        storeV(best_d + i + L, d1);
     }
+    return i;
+}
+
+/// The cells [i, n) one by one (the same arithmetic, lane by lane).
+inline void nearTail(const float* z, int i, int n, const NearField& f, float* best_t,
+                     float* best_d) {
+    const int nx = f.n;
     for (; i < n; ++i) {
         const float* zi = z + i;
         const float g = zi[0];
         float b = -kInfF, d = 0;
         for (int k = 0; k < nx; ++k) {
-            const float a = zi[o1[k]], c = zi[o2[k]];
-            const float t = ((a - g) + wt[k] * (c - a) - hd[k]) * inv[k];
+            const float a = zi[f.off1[k]], c = zi[f.off2[k]];
+            const float t = ((a - g) + f.w[k] * (c - a) - f.hd[k]) * f.inv[k];
             if (t > b)
-                b = t, d = dist[k];
+                b = t, d = f.dist[k];
         }
         best_t[i] = b, best_d[i] = d;
     }
+}
+
+/// Largest tangent over the near field for the `n` cells starting at `z`: 16 cells a step with
+/// 8-lane vectors.
+__attribute__((always_inline)) inline void nearBody(const float* z, int n, const NearField& f,
+                                                    float* best_t, float* best_d) {
+    const int i = nearBlocks<V8, 8>(z, 0, n, f, best_t, best_d);
+    nearTail(z, i, n, f, best_t, best_d);
+}
+
+/// The same, 32 cells a step with 16-lane vectors first (AVX-512: half the instructions).
+__attribute__((always_inline)) inline void nearBodyWide(const float* z, int n, const NearField& f,
+                                                        float* best_t, float* best_d) {
+    int i = nearBlocks<V16, 16>(z, 0, n, f, best_t, best_d);
+    i = nearBlocks<V8, 8>(z, i, n, f, best_t, best_d);
+    nearTail(z, i, n, f, best_t, best_d);
 }
 
 /// atan in degrees, without branches (so that a row of them vectorises): reduction to
@@ -306,6 +349,10 @@ __attribute__((target("avx2,fma"))) void nearAvx2(const float* z, int n, const N
 __attribute__((target("avx2,fma"))) void anglesAvx2(const double* t, int n, float* angle) {
     anglesBody(t, n, angle);
 }
+__attribute__((target("avx512f,avx512vl,avx512bw,avx512dq,avx2,fma"))) void nearAvx512(
+    const float* z, int n, const NearField& f, float* best_t, float* best_d) {
+    nearBodyWide(z, n, f, best_t, best_d);
+}
 #define LOOKFAR_HAVE_AVX2_KERNEL 1
 #endif
 
@@ -331,6 +378,10 @@ Kernels chooseKernels() {
         k.near = nearAvx2;
         k.angles = anglesAvx2;
     }
+    if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512vl") &&
+        __builtin_cpu_supports("avx512bw") && __builtin_cpu_supports("avx512dq") &&
+        __builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma"))
+        k.near = nearAvx512;
 #endif
     return k;
 }
@@ -501,8 +552,9 @@ void setUp(const EngineInput& in, int index, Direction& d) {
 }
 
 /// Output tiles (angle and distance per cell) waiting for their last line. Until a tile is
-/// finished its planes hold the far field of each cell: the tangent and distance of the best exact
-/// sample around its line's tangent point (NaN: none).
+/// finished its planes hold the tangent and distance of the best exact sample of each cell so far:
+/// first its near field's (−∞: none; NaN: the cell is on no data), then the better of that and
+/// the samples around its line's tangent point.
 struct Tiles {
     int ntx = 0, nty = 0;
     std::vector<float*> ptr;  // live tile buffers by tile id (nullptr when not live)
@@ -518,18 +570,16 @@ struct Tiles {
             owned.emplace_back(new float[2 * kTileCells]);
             b = owned.back().get();
         }
-        std::fill(b, b + 2 * kTileCells, kNaNf);
         return b;
     }
     void release(int id) {
         pool.push_back(ptr[id]);
         ptr[id] = nullptr;
     }
-    void putFar(int col, int row, float t, float dist) {
+    /// The best tangent so far of cell (col, row); its distance is kTileCells further on.
+    float* cell(int col, int row) const {
         float* b = ptr[(row >> kTileShift) * ntx + (col >> kTileShift)];
-        const int off = ((row & (kTile - 1)) << kTileShift) | (col & (kTile - 1));
-        b[off] = t;
-        b[kTileCells + off] = dist;
+        return b + (((row & (kTile - 1)) << kTileShift) | (col & (kTile - 1)));
     }
 };
 
@@ -537,13 +587,15 @@ struct Tiles {
 struct LineBuf {
     long j = 0;
     int a_lo = 0, a_hi = -1, n = 0;
-    double* Z = nullptr;     // folded heights (NaN = no data); raw heights until folded
-    double* S = nullptr;     // geographic: coordinate along the line, metres
-    float* g_up = nullptr;   // ground of the cell on the line's upper side (minor q) if the line
-                             // answers for it, else NaN
-    float* g_dn = nullptr;   // … of the cell on its lower side (q − 1)
-    int* cand_up = nullptr;  // tangent point (major steps from the eye) for the upper-side cell
-    int* cand_dn = nullptr;  // … for the lower-side cell (−1: none)
+    double* Z = nullptr;      // folded heights (NaN = no data); raw heights until folded
+    double* S = nullptr;      // geographic: coordinate along the line, metres
+    float* g_up = nullptr;    // ground of the cell on the line's upper side (minor q) if the line
+                              // answers for it, else NaN
+    float* g_dn = nullptr;    // … of the cell on its lower side (q − 1)
+    int* cand_up = nullptr;   // tangent point (major steps from the eye) for the upper-side cell
+    int* cand_dn = nullptr;   // … for the lower-side cell (−1: none)
+    float* est_up = nullptr;  // tangent of the line's horizon seen from the upper-side cell's eye
+    float* est_dn = nullptr;  // … from the lower-side cell's
     int k(int a, int sign) const { return sign > 0 ? a_hi - a : a - a_lo; }
     bool has(int a) const { return a >= a_lo && a <= a_hi; }
 };
@@ -559,6 +611,7 @@ struct Scratch {
     std::vector<double> z, s;
     std::vector<float> gu, gd;
     std::vector<int> up, dn;
+    std::vector<float> eu, ed;
     std::vector<Vertex> back, front, grave;
     std::vector<int> record;
     LineBuf lines[kGroupLines];
@@ -566,6 +619,7 @@ struct Scratch {
         const std::size_t n = static_cast<std::size_t>(len) * kGroupLines;
         if (z.size() < n) {
             z.resize(n), s.resize(n), gu.resize(n), gd.resize(n), up.resize(n), dn.resize(n);
+            eu.resize(n), ed.resize(n);
             back.resize(len + 1), front.resize(len + 1), grave.resize(len + 1);
             record.resize(len + 1);
         }
@@ -577,6 +631,8 @@ struct Scratch {
             lines[i].g_dn = gd.data() + off;
             lines[i].cand_up = up.data() + off;
             lines[i].cand_dn = dn.data() + off;
+            lines[i].est_up = eu.data() + off;
+            lines[i].est_dn = ed.data() + off;
         }
     }
 };
@@ -773,14 +829,24 @@ class FarRefiner {
                 const int p = q - side;
                 const float g = side ? L.g_dn[k] : L.g_up[k];
                 const int col = mc ? a : p, row = mc ? p : a;
+                float* best = tiles.cell(col, row);
+                // The line beside the ray sees its far horizon within a few hundredths of the
+                // ray's tangent (half a cell aside, beyond the near field): when the near field
+                // already beats it by more than that, the far samples cannot win.
+                const float est = side ? L.est_dn[k] : L.est_up[k];
+                if (est + kFarMargin < best[0])
+                    continue;
                 const double ze = static_cast<double>(g) + eye_h;
                 double t = -kInf, dist = 0;
                 if (kGeo)
                     refineGeographic(col, row, cand, ze, t, dist);
                 else
                     refineProjected(col, row, cand, ze, t, dist);
-                if (t > -kInf)
-                    tiles.putFar(col, row, static_cast<float>(t), static_cast<float>(dist));
+                const float tf = static_cast<float>(t);
+                if (tf > best[0]) {  // ties keep the nearer sample
+                    best[0] = tf;
+                    best[kTileCells] = static_cast<float>(dist);
+                }
             }
         }
     }
@@ -936,6 +1002,9 @@ class LineWorker {
         const double* S = L.S;
         int* cand_up = L.cand_up;
         int* cand_dn = L.cand_dn;
+        float* est_up = L.est_up;
+        float* est_dn = L.est_dn;
+        const double inv_step = kGeo ? 1.0 : 1.0 / d_.step_m;  // pos() units to metres
         auto pos = [&](int k) { return kGeo ? S[k] : -static_cast<double>(k); };
         Vertex* back = sc.back.data();
         Vertex* front = sc.front.data();
@@ -1022,19 +1091,28 @@ class LineWorker {
                 continue;
             const double sE = pos(k);
             const double fold = d_.c * (kGeo ? sE * sE : (k * d_.step_m) * (k * d_.step_m));
-            // Both sides only at the grid's edges.
+            // The tangent point from the eye of ground g, and the tangent of the line's horizon
+            // seen from that eye, (Z_P − Z_E)/(s_P − s_E) + 2c s_E (in metres).
+            const double tilt = 2 * d_.c * (kGeo ? sE : -k * d_.step_m);
+            auto answer = [&](float g, int& cand, float& est) {
+                const double zE = g + eye_h_ - fold;
+                const Vertex& v = tangent(front, nf, back, nb, sE, zE, pf, pb);
+                cand = k - v.k;
+                est = static_cast<float>((v.z - zE) / (v.s - sE) * inv_step + tilt);
+            };
+            // Both sides only at the grid's edges; the lower eye first (the walks go uphill).
             if (has_u && has_d) {
-                const bool up_low = gu <= gd;
-                const int v1 =
-                    tangent(front, nf, back, nb, sE, (up_low ? gu : gd) + eye_h_ - fold, pf, pb);
-                const int v2 =
-                    tangent(front, nf, back, nb, sE, (up_low ? gd : gu) + eye_h_ - fold, pf, pb);
-                cand_up[k] = k - (up_low ? v1 : v2);
-                cand_dn[k] = k - (up_low ? v2 : v1);
+                if (gu <= gd) {
+                    answer(gu, cand_up[k], est_up[k]);
+                    answer(gd, cand_dn[k], est_dn[k]);
+                } else {
+                    answer(gd, cand_dn[k], est_dn[k]);
+                    answer(gu, cand_up[k], est_up[k]);
+                }
             } else if (has_u) {
-                cand_up[k] = k - tangent(front, nf, back, nb, sE, gu + eye_h_ - fold, pf, pb);
+                answer(gu, cand_up[k], est_up[k]);
             } else {
-                cand_dn[k] = k - tangent(front, nf, back, nb, sE, gd + eye_h_ - fold, pf, pb);
+                answer(gd, cand_dn[k], est_dn[k]);
             }
         }
     }
@@ -1044,8 +1122,8 @@ class LineWorker {
     // tangent point: pf and pb (array indices into the front and back hulls) are where the walks
     // start, the previous eye's tangent points, and they return where the walks ended. Along a
     // line the tangent point moves little from one eye to the next: a step or two.
-    static inline int tangent(const Vertex* front, int nf, const Vertex* back, int nb, double sE,
-                              double zE, int& pf, int& pb) {
+    static inline const Vertex& tangent(const Vertex* front, int nf, const Vertex* back, int nb,
+                                        double sE, double zE, int& pf, int& pb) {
         auto improves = [&](const Vertex& v0, const Vertex& v1) {  // v1 seen higher than v0
             return (v1.z - zE) * (v0.s - sE) > (v0.z - zE) * (v1.s - sE);
         };
@@ -1079,7 +1157,7 @@ class LineWorker {
             if (!best || !improves(v, *best))
                 best = &v;
         }
-        return best->k;
+        return *best;
     }
 
     // The exact samples around each cell's tangent point, into the tiles.
@@ -1100,7 +1178,6 @@ class LineWorker {
 };
 /// A thread's scratch buffers for the tiles.
 struct TileScratch {
-    float best_t[kTile], best_d[kTile];
     double t[kTile];
     std::vector<Crossing> crossings;  // geographic: the near field of one row
     std::vector<int> major_pos;
@@ -1124,9 +1201,15 @@ class TileWorker {
           k_exact_(in.options.exact_steps),
           refine_(in.options.refine_steps) {}
 
-    void run(float* buf, int c0, int r0, int tw, int th, TileScratch& ts) const {
+    /// The near field of every cell of the tile, into its planes (before any line records).
+    void near(float* buf, int c0, int r0, int tw, int th, TileScratch& ts) const {
         for (int rr = 0; rr < th; ++rr)
-            row(buf + rr * kTile, buf + kTileCells + rr * kTile, c0, r0 + rr, tw, ts);
+            nearRow(buf + rr * kTile, buf + kTileCells + rr * kTile, c0, r0 + rr, tw, ts);
+    }
+    /// The angles and distances of the tile's cells from their best samples, in place.
+    void finish(float* buf, int c0, int r0, int tw, int th, TileScratch& ts) const {
+        for (int rr = 0; rr < th; ++rr)
+            finishRow(buf + rr * kTile, buf + kTileCells + rr * kTile, c0, r0 + rr, tw, ts);
     }
 
   private:
@@ -1175,7 +1258,7 @@ class TileWorker {
         best_t = b, best_d = d;
     }
 
-    void row(float* angle, float* distance, int c0, int r, int tw, TileScratch& ts) const {
+    void nearRow(float* best_t, float* best_d, int c0, int r, int tw, TileScratch& ts) const {
         const NearField& f = d_.geographic ? geographicNear(r, ts) : d_.near;
         const float* zrow = dem_ + static_cast<std::size_t>(r) * w_;
         // The cells whose whole near field lies inside the grid go through the vector kernel.
@@ -1187,29 +1270,25 @@ class TileWorker {
                 v_lo = v_hi = c0;
         }
         if (v_hi > v_lo)
-            kernels_.near(zrow + v_lo, v_hi - v_lo, f, ts.best_t + (v_lo - c0),
-                          ts.best_d + (v_lo - c0));
+            kernels_.near(zrow + v_lo, v_hi - v_lo, f, best_t + (v_lo - c0), best_d + (v_lo - c0));
         for (int c = c0; c < c0 + tw; ++c) {
             if (c == v_lo && v_hi > v_lo)
                 c = v_hi;
             if (c >= c0 + tw)
                 break;
-            nearChecked(c, r, f, ts.best_t[c - c0], ts.best_d[c - c0]);
+            nearChecked(c, r, f, best_t[c - c0], best_d[c - c0]);
         }
         for (int i = 0; i < tw; ++i) {
-            const int c = c0 + i;
-            const float g = zrow[c];
-            if (std::isnan(g)) {
-                angle[i] = distance[i] = kNaNf;
-                ts.t[i] = kNaN;
-                continue;
-            }
-            double t = ts.best_t[i], dist = ts.best_d[i];
-            const float t_far = angle[i];  // NaN (none) never wins; ties keep the nearer sample
-            if (t_far > t)
-                t = t_far, dist = distance[i];
+            if (std::isnan(zrow[c0 + i]))
+                best_t[i] = kNaNf;
+        }
+    }
+
+    void finishRow(float* angle, float* distance, int c0, int r, int tw, TileScratch& ts) const {
+        for (int i = 0; i < tw; ++i) {
+            const double t = angle[i];  // the best tangent (−∞: none; NaN: no data)
             const bool found = t > -kInf;
-            distance[i] = found ? static_cast<float>(dist) : kNaNf;
+            distance[i] = found ? distance[i] : kNaNf;
             ts.t[i] = found ? t : kNaN;
         }
         kernels_.angles(ts.t, tw, angle);
@@ -1266,7 +1345,7 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
     constexpr std::int64_t kPerDirection = 1000;
     progress.begin("horizon", n_dir * kPerDirection);
     Direction d;
-    std::vector<TileInfo> by_start, by_end, ready;
+    std::vector<TileInfo> by_start, by_end, ready, fresh;
 
     for (int i = 0; i < n_dir; ++i) {
         setUp(in, i, d);
@@ -1296,33 +1375,56 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
         const TileWorker finisher(in, d, acc, kernels);
         const long span = d.jmax - d.jmin + 1;
         const long batch_lines = static_cast<long>(kGroupLines) * kBatchGroups;
-        // One parallel loop a batch: the line groups of this batch and the tiles that the
-        // previous batch completed (no line of this batch touches them), so the threads meet
-        // once a batch and the tiles fill the gaps the lines leave.
+        // The tiles that the lines of the batch ending at line j1 reach first: taken into
+        // `fresh`, their near field still to be sampled.
+        auto acquireFor = [&](long j1) {
+            fresh.clear();
+            const bool last = j1 >= d.jmax;
+            while (next_start < by_start.size() && (by_start[next_start].jmin <= j1 || last)) {
+                tiles.ptr[by_start[next_start].id] = tiles.acquire();
+                fresh.push_back(by_start[next_start]);
+                ++next_start;
+            }
+        };
+        auto tileWork = [&](const TileInfo& info, bool near) {
+            const int c0 = (info.id % tiles.ntx) * kTile, r0 = (info.id / tiles.ntx) * kTile;
+            const int tw = std::min(kTile, w - c0), th = std::min(kTile, h - r0);
+            TileScratch& ts = *tile_scratch[threadIndex()];
+            if (near)
+                finisher.near(tiles.ptr[info.id], c0, r0, tw, th, ts);
+            else
+                finisher.finish(tiles.ptr[info.id], c0, r0, tw, th, ts);
+        };
+        // The near field of the first batch's tiles.
+        acquireFor(std::min(d.jmin + batch_lines - 1, d.jmax));
+#pragma omp parallel for schedule(dynamic, 1)
+        for (int item = 0; item < static_cast<int>(fresh.size()); ++item)
+            tileWork(fresh[item], true);
+        // One parallel loop a batch: the line groups of this batch, the tiles that the previous
+        // batch completed (no line of this batch touches them) and the near field of the tiles
+        // the next batch reaches first, so the threads meet once a batch and the tiles fill the
+        // gaps the lines leave.
         ready.clear();
         for (long j0 = d.jmin;; j0 += batch_lines) {
             const bool more_lines = j0 <= d.jmax;
             const long j1 = more_lines ? std::min(j0 + batch_lines - 1, d.jmax) : j0 - 1;
             const bool last = j1 >= d.jmax;
-            if (more_lines) {
-                while (next_start < by_start.size() && (by_start[next_start].jmin <= j1 || last)) {
-                    tiles.ptr[by_start[next_start].id] = tiles.acquire();
-                    ++next_start;
-                }
-            }
+            if (more_lines && !last)
+                acquireFor(std::min(j1 + batch_lines, d.jmax));
+            else
+                fresh.clear();
             const int groups = more_lines ? static_cast<int>((j1 - j0) / kGroupLines + 1) : 0;
             const int n_ready = static_cast<int>(ready.size());
+            const int n_fresh = static_cast<int>(fresh.size());
 #pragma omp parallel for schedule(dynamic, 1)
-            for (int item = 0; item < groups + n_ready; ++item) {
+            for (int item = 0; item < groups + n_ready + n_fresh; ++item) {
                 if (item < groups) {
                     lines.run(j0 + static_cast<long>(item) * kGroupLines, j1,
                               scratch[threadIndex()]);
+                } else if (item < groups + n_ready) {
+                    tileWork(ready[item - groups], false);
                 } else {
-                    const TileInfo& info = ready[item - groups];
-                    const int c0 = (info.id % tiles.ntx) * kTile;
-                    const int r0 = (info.id / tiles.ntx) * kTile;
-                    finisher.run(tiles.ptr[info.id], c0, r0, std::min(kTile, w - c0),
-                                 std::min(kTile, h - r0), *tile_scratch[threadIndex()]);
+                    tileWork(fresh[item - groups - n_ready], true);
                 }
             }
             for (const TileInfo& info : ready) {
