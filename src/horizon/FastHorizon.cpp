@@ -583,19 +583,25 @@ struct Tiles {
     }
 };
 
+/// A cell whose exact samples around its line's tangent point are to be taken.
+struct FarJob {
+    int col, row;
+    int cand;      // the tangent point, major steps from the eye
+    float ground;  // the cell's ground, m
+    float* best;   // its best tangent so far, in its tile
+};
+
 /// One line of a group: its samples from the far end (k = 0) to the near end.
 struct LineBuf {
     long j = 0;
     int a_lo = 0, a_hi = -1, n = 0;
-    double* Z = nullptr;      // folded heights (NaN = no data); raw heights until folded
-    double* S = nullptr;      // geographic: coordinate along the line, metres
-    float* g_up = nullptr;    // ground of the cell on the line's upper side (minor q) if the line
-                              // answers for it, else NaN
-    float* g_dn = nullptr;    // … of the cell on its lower side (q − 1)
-    int* cand_up = nullptr;   // tangent point (major steps from the eye) for the upper-side cell
-    int* cand_dn = nullptr;   // … for the lower-side cell (−1: none)
-    float* est_up = nullptr;  // tangent of the line's horizon seen from the upper-side cell's eye
-    float* est_dn = nullptr;  // … from the lower-side cell's
+    double* Z = nullptr;     // folded heights (NaN = no data); raw heights until folded
+    double* S = nullptr;     // geographic: coordinate along the line, metres
+    float* g_up = nullptr;   // ground of the cell on the line's upper side (minor q) if the line
+                             // answers for it, else NaN
+    float* g_dn = nullptr;   // … of the cell on its lower side (q − 1)
+    FarJob* jobs = nullptr;  // the cells whose far samples are to be taken
+    int n_jobs = 0;
     int k(int a, int sign) const { return sign > 0 ? a_hi - a : a - a_lo; }
     bool has(int a) const { return a >= a_lo && a <= a_hi; }
 };
@@ -610,16 +616,14 @@ struct Vertex {
 struct Scratch {
     std::vector<double> z, s;
     std::vector<float> gu, gd;
-    std::vector<int> up, dn;
-    std::vector<float> eu, ed;
+    std::vector<FarJob> jobs;
     std::vector<Vertex> back, front, grave;
     std::vector<int> record;
     LineBuf lines[kGroupLines];
     void reserve(int len) {
         const std::size_t n = static_cast<std::size_t>(len) * kGroupLines;
         if (z.size() < n) {
-            z.resize(n), s.resize(n), gu.resize(n), gd.resize(n), up.resize(n), dn.resize(n);
-            eu.resize(n), ed.resize(n);
+            z.resize(n), s.resize(n), gu.resize(n), gd.resize(n), jobs.resize(2 * n);
             back.resize(len + 1), front.resize(len + 1), grave.resize(len + 1);
             record.resize(len + 1);
         }
@@ -629,10 +633,7 @@ struct Scratch {
             lines[i].S = s.data() + off;
             lines[i].g_up = gu.data() + off;
             lines[i].g_dn = gd.data() + off;
-            lines[i].cand_up = up.data() + off;
-            lines[i].cand_dn = dn.data() + off;
-            lines[i].est_up = eu.data() + off;
-            lines[i].est_dn = ed.data() + off;
+            lines[i].jobs = jobs.data() + 2 * off;
         }
     }
 };
@@ -802,51 +803,29 @@ class FarRefiner {
     /// The far field of every cell that line L answers for (its upper cell q and lower cell
     /// q − 1 at each sample), into the tiles: the exact samples of each cell's ray around its
     /// tangent point.
-    void recordLine(const LineBuf& L, Tiles& tiles) const {
+    void recordLine(const LineBuf& L) const {
         if (d_.geographic)
-            recordLineT<true>(L, tiles);
+            recordLineT<true>(L);
         else
-            recordLineT<false>(L, tiles);
+            recordLineT<false>(L);
     }
 
   private:
     template <bool kGeo>
-    void recordLineT(const LineBuf& L, Tiles& tiles) const {
-        const int sign = d_.sign;
-        const bool mc = d_.major_cols;
-        const int* xi = d_.xi.data();
+    void recordLineT(const LineBuf& L) const {
         const double eye_h = in_.options.observer_height_m;
-        for (int k = 0; k < L.n; ++k) {
-            const int cu = L.cand_up[k], cd = L.cand_dn[k];
-            if (cu < 0 && cd < 0)
-                continue;
-            const int a = sign > 0 ? L.a_hi - k : L.a_lo + k;
-            const int q = static_cast<int>(L.j + xi[a]);
-            for (int side = 0; side < 2; ++side) {
-                const int cand = side ? cd : cu;
-                if (cand < 0)
-                    continue;
-                const int p = q - side;
-                const float g = side ? L.g_dn[k] : L.g_up[k];
-                const int col = mc ? a : p, row = mc ? p : a;
-                float* best = tiles.cell(col, row);
-                // The line beside the ray sees its far horizon within a few hundredths of the
-                // ray's tangent (half a cell aside, beyond the near field): when the near field
-                // already beats it by more than that, the far samples cannot win.
-                const float est = side ? L.est_dn[k] : L.est_up[k];
-                if (est + kFarMargin < best[0])
-                    continue;
-                const double ze = static_cast<double>(g) + eye_h;
-                double t = -kInf, dist = 0;
-                if (kGeo)
-                    refineGeographic(col, row, cand, ze, t, dist);
-                else
-                    refineProjected(col, row, cand, ze, t, dist);
-                const float tf = static_cast<float>(t);
-                if (tf > best[0]) {  // ties keep the nearer sample
-                    best[0] = tf;
-                    best[kTileCells] = static_cast<float>(dist);
-                }
+        for (int i = 0; i < L.n_jobs; ++i) {
+            const FarJob& job = L.jobs[i];
+            const double ze = static_cast<double>(job.ground) + eye_h;
+            double t = -kInf, dist = 0;
+            if (kGeo)
+                refineGeographic(job.col, job.row, job.cand, ze, t, dist);
+            else
+                refineProjected(job.col, job.row, job.cand, ze, t, dist);
+            const float tf = static_cast<float>(t);
+            if (tf > job.best[0]) {  // ties keep the nearer sample
+                job.best[0] = tf;
+                job.best[kTileCells] = static_cast<float>(dist);
             }
         }
     }
@@ -986,7 +965,8 @@ class LineWorker {
 
     // Coordinates of the hull: index space on projected grids (S = −k·step, the step cancels in
     // every comparison), metres on geographic ones.
-    void sweep(const LineBuf& L, Scratch& sc) const {
+    void sweep(LineBuf& L, Scratch& sc) const {
+        L.n_jobs = 0;
         if (L.n == 0)
             return;
         if (d_.geographic)
@@ -996,14 +976,15 @@ class LineWorker {
     }
 
     template <bool kGeo>
-    void sweepT(const LineBuf& L, Scratch& sc) const {
+    void sweepT(LineBuf& L, Scratch& sc) const {
         const int n = L.n;
         const double* Z = L.Z;
         const double* S = L.S;
-        int* cand_up = L.cand_up;
-        int* cand_dn = L.cand_dn;
-        float* est_up = L.est_up;
-        float* est_dn = L.est_dn;
+        FarJob* jobs = L.jobs;
+        int n_jobs = 0;
+        const int sign = d_.sign;
+        const bool mc = d_.major_cols;
+        const int* xi = d_.xi.data();
         const double inv_step = kGeo ? 1.0 : 1.0 / d_.step_m;  // pos() units to metres
         auto pos = [&](int k) { return kGeo ? S[k] : -static_cast<double>(k); };
         Vertex* back = sc.back.data();
@@ -1059,7 +1040,6 @@ class LineWorker {
         const float* g_dn = L.g_dn;
         int pf = 0, pb = 0;  // where the tangent walks start
         for (int k = 0; k < n; ++k) {
-            cand_up[k] = cand_dn[k] = -1;
             const int hi = k - lag;
             if (hi >= 0) {
                 pushed = hi;
@@ -1094,27 +1074,39 @@ class LineWorker {
             // The tangent point from the eye of ground g, and the tangent of the line's horizon
             // seen from that eye, (Z_P − Z_E)/(s_P − s_E) + 2c s_E (in metres).
             const double tilt = 2 * d_.c * (kGeo ? sE : -k * d_.step_m);
-            auto answer = [&](float g, int& cand, float& est) {
+            const int a = sign > 0 ? L.a_hi - k : L.a_lo + k;
+            const int q = static_cast<int>(L.j + xi[a]);
+            // side 0: the cell on the line's upper side (minor q), 1: the lower one (q − 1).
+            auto answer = [&](float g, int side) __attribute__((always_inline)) {
                 const double zE = g + eye_h_ - fold;
                 const Vertex& v = tangent(front, nf, back, nb, sE, zE, pf, pb);
-                cand = k - v.k;
-                est = static_cast<float>((v.z - zE) / (v.s - sE) * inv_step + tilt);
+                const float est = static_cast<float>((v.z - zE) / (v.s - sE) * inv_step + tilt);
+                const int p = q - side;
+                const int col = mc ? a : p, row = mc ? p : a;
+                float* best = tiles_.cell(col, row);
+                // The ray runs within half a cell of the line: beyond the near field its samples
+                // around the tangent point are within a few thousandths of the line's tangent,
+                // so when the near field beats that by more than the margin they cannot win.
+                if (est + kFarMargin < best[0])
+                    return;
+                jobs[n_jobs++] = FarJob{col, row, k - v.k, g, best};
             };
             // Both sides only at the grid's edges; the lower eye first (the walks go uphill).
             if (has_u && has_d) {
                 if (gu <= gd) {
-                    answer(gu, cand_up[k], est_up[k]);
-                    answer(gd, cand_dn[k], est_dn[k]);
+                    answer(gu, 0);
+                    answer(gd, 1);
                 } else {
-                    answer(gd, cand_dn[k], est_dn[k]);
-                    answer(gu, cand_up[k], est_up[k]);
+                    answer(gd, 1);
+                    answer(gu, 0);
                 }
             } else if (has_u) {
-                answer(gu, cand_up[k], est_up[k]);
+                answer(gu, 0);
             } else {
-                answer(gd, cand_dn[k], est_dn[k]);
+                answer(gd, 1);
             }
         }
+        L.n_jobs = n_jobs;
     }
 
     // The tangent point (sample index) from the eye (sE, zE) over both hulls. The slopes from an
@@ -1163,7 +1155,7 @@ class LineWorker {
     // The exact samples around each cell's tangent point, into the tiles.
     void record(const Scratch& sc) const {
         for (int i = 0; i < kGroupLines; ++i)
-            refiner_.recordLine(sc.lines[i], tiles_);
+            refiner_.recordLine(sc.lines[i]);
     }
 
     const Direction& d_;

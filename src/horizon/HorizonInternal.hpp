@@ -127,12 +127,33 @@ class SummaryAccumulator {
         if (want_dip_ && !(angle_deg >= min_angle_.data()[i]))
             min_angle_.data()[i] = angle_deg;
     }
-    /// add() for the `n` cells from index i0 on (one run of a row).
+    /// add() for the `n` cells from index i0 on (one run of a row), in loops without branches
+    /// that the compiler turns into vector code (the same sums, cell by cell).
     void addRun(std::size_t i0, int n, const float* angle_deg, const double* t) {
-        if (!want_svf_ && !want_dip_)
-            return;
-        for (int k = 0; k < n; ++k)
-            add(i0 + k, angle_deg[k], t[k]);
+        if (want_svf_) {
+            float* sum = svf_sum_.data() + i0;
+            for (int k = 0; k < n; ++k) {
+                const double tk = t[k];
+                const double s = tk / std::sqrt(1.0 + tk * tk);  // NaN for no data
+                sum[k] += tk > 0 ? static_cast<float>(s) : 0.0f;
+            }
+            if (count8_.empty()) {
+                std::uint16_t* c = count16_.data() + i0;
+                for (int k = 0; k < n; ++k)
+                    c[k] += angle_deg[k] == angle_deg[k];
+            } else {
+                std::uint8_t* c = count8_.data() + i0;
+                for (int k = 0; k < n; ++k)
+                    c[k] += angle_deg[k] == angle_deg[k];
+            }
+        }
+        if (want_dip_) {
+            float* m = min_angle_.data() + i0;
+            for (int k = 0; k < n; ++k) {
+                const float a = angle_deg[k];
+                m[k] = a == a && !(a >= m[k]) ? a : m[k];
+            }
+        }
     }
     /// Turns the sums into the summary grids, in place (no grid is copied).
     HorizonSummary finish();
