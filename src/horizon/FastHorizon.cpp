@@ -399,6 +399,7 @@ struct Direction {
     std::vector<double> gx;
     bool geographic = false;
     double step_m = 0;               // projected: metres per major step
+    std::vector<double> fold;        // projected: c s² at s = −k · step, by k
     std::vector<double> step_table;  // geographic: metres per major step of the lines, by row
     std::vector<double> m_row;       // geographic: minor per major step of a cell's own ray, by row
     long jmin = 0, jmax = -1;
@@ -511,6 +512,11 @@ void setUp(const EngineInput& in, int index, Direction& d) {
         }
     } else {
         d.step_m = stepAtRow(r_ref);
+        d.fold.resize(d.A + 1);
+        for (int k = 0; k <= d.A; ++k) {
+            const double s = -k * d.step_m;
+            d.fold[k] = d.c * s * s;
+        }
         const double step = d.step_m, cc = d.c;
         buildCrossings(
             d, d.m, d.A, w,
@@ -576,10 +582,11 @@ struct Tiles {
         pool.push_back(ptr[id]);
         ptr[id] = nullptr;
     }
-    /// The best tangent so far of cell (col, row); its distance is kTileCells further on.
-    float* cell(int col, int row) const {
-        float* b = ptr[(row >> kTileShift) * ntx + (col >> kTileShift)];
-        return b + (((row & (kTile - 1)) << kTileShift) | (col & (kTile - 1)));
+    /// The tile of cell (col, row), and the cell's place in it: its best tangent so far is at
+    /// ptr[id] + offset, its distance kTileCells further on.
+    int id(int col, int row) const { return (row >> kTileShift) * ntx + (col >> kTileShift); }
+    static int offset(int col, int row) {
+        return ((row & (kTile - 1)) << kTileShift) | (col & (kTile - 1));
     }
 };
 
@@ -602,8 +609,6 @@ struct LineBuf {
     float* g_dn = nullptr;   // … of the cell on its lower side (q − 1)
     FarJob* jobs = nullptr;  // the cells whose far samples are to be taken
     int n_jobs = 0;
-    int k(int a, int sign) const { return sign > 0 ? a_hi - a : a - a_lo; }
-    bool has(int a) const { return a >= a_lo && a <= a_hi; }
 };
 
 /// A hull vertex: a sample's coordinate along the line, its folded height and its index.
@@ -880,11 +885,6 @@ class LineWorker {
     }
 
   private:
-    float ground(int a, int p) const {
-        return d_.major_cols ? dem_[static_cast<std::size_t>(p) * w_ + a]
-                             : dem_[static_cast<std::size_t>(a) * w_ + p];
-    }
-
     // Major indices where line j has a sample: minor position j + x_a − g_a inside [0, B − 1].
     bool validRange(long j, int& a_lo, int& a_hi) const {
         const int A = d_.A;
@@ -922,43 +922,71 @@ class LineWorker {
     // the grounds of the cells each line answers for: the nearer line of the two around a cell,
     // or the only one of them inside the grid.
     void gather(Scratch& sc, int u_lo, int u_hi) const {
-        const int B = d_.B;
+        const int B = d_.B, sign = d_.sign;
+        const float* dem = dem_;
+        // Strides of the major and minor axes in the DEM's cell array.
+        const std::ptrdiff_t sa = d_.major_cols ? 1 : w_, sp = d_.major_cols ? w_ : 1;
+        // The lines' ranges and arrays in locals (the stores below cannot then alias them):
+        // sample k of line i at major index a is k = off[i] + (sign > 0 ? −a : a).
+        int lo[kGroupLines], hi[kGroupLines];
+        std::ptrdiff_t off[kGroupLines];
+        double* zs[kGroupLines];
+        float *gus[kGroupLines], *gds[kGroupLines];
+        for (int i = 0; i < kGroupLines; ++i) {
+            const LineBuf& L = sc.lines[i];
+            lo[i] = L.a_lo, hi[i] = L.a_hi;
+            off[i] = sign > 0 ? L.a_hi : -static_cast<std::ptrdiff_t>(L.a_lo);
+            zs[i] = L.Z, gus[i] = L.g_up, gds[i] = L.g_dn;
+        }
+        const long j0 = sc.lines[0].j;
         for (int a = u_lo; a <= u_hi; ++a) {
             const double g = d_.gx[a];
-            const int xa = d_.xi[a];
-            for (int i = 0; i < kGroupLines; ++i) {
-                LineBuf& L = sc.lines[i];
-                if (!L.has(a))
-                    continue;
-                const int q = static_cast<int>(L.j + xa);
-                const int k = L.k(a, d_.sign);
-                const float up = ground(a, q);
-                if (g > 0) {
-                    const float dn = ground(a, q - 1);
-                    L.Z[k] = g * dn + (1 - g) * up;
-                    L.g_up[k] = g <= 0.5 || q == B - 1 ? up : kNaNf;
-                    L.g_dn[k] = g > 0.5 || q - 1 == 0 ? dn : kNaNf;
-                } else {
-                    L.Z[k] = up;
-                    L.g_up[k] = up;
-                    L.g_dn[k] = kNaNf;
+            const long q0 = j0 + d_.xi[a];  // minor index of line 0's upper cell
+            const std::ptrdiff_t cell0 = a * sa + q0 * sp;
+            const std::ptrdiff_t idx = sign > 0 ? -a : a;
+            if (g > 0) {
+                // The nearer line answers for a cell: the upper cell when g ≤ ½; at the grid's
+                // edges a line also answers for the cell it alone reaches.
+                const bool near_up = g <= 0.5;
+                for (int i = 0; i < kGroupLines; ++i) {
+                    if (a < lo[i] || a > hi[i])
+                        continue;
+                    const std::ptrdiff_t c = cell0 + i * sp, k = off[i] + idx;
+                    const long q = q0 + i;
+                    const float up = dem[c], dn = dem[c - sp];
+                    zs[i][k] = g * dn + (1 - g) * up;
+                    gus[i][k] = near_up || q == B - 1 ? up : kNaNf;
+                    gds[i][k] = !near_up || q == 1 ? dn : kNaNf;
+                }
+            } else {
+                for (int i = 0; i < kGroupLines; ++i) {
+                    if (a < lo[i] || a > hi[i])
+                        continue;
+                    const std::ptrdiff_t k = off[i] + idx;
+                    const float up = dem[cell0 + i * sp];
+                    zs[i][k] = up;
+                    gus[i][k] = up;
+                    gds[i][k] = kNaNf;
                 }
             }
         }
         for (int i = 0; i < kGroupLines; ++i) {
             LineBuf& L = sc.lines[i];
-            const int a_far = d_.sign > 0 ? L.a_hi : L.a_lo;
-            double s = 0;
-            for (int k = 0; k < L.n; ++k) {
-                if (d_.geographic) {
-                    const int a = a_far - d_.sign * k;
+            if (d_.geographic) {
+                const int a_far = sign > 0 ? L.a_hi : L.a_lo;
+                double s = 0;
+                for (int k = 0; k < L.n; ++k) {
+                    const int a = a_far - sign * k;
                     if (k > 0)
                         s -= d_.step_table[d_.major_cols ? static_cast<int>(L.j + d_.xi[a]) : a];
                     L.S[k] = s;
-                } else {
-                    s = -k * d_.step_m;
+                    L.Z[k] -= d_.c * s * s;
                 }
-                L.Z[k] -= d_.c * s * s;
+            } else {
+                const double* fold = d_.fold.data();
+                double* z = L.Z;
+                for (int k = 0; k < L.n; ++k)
+                    z[k] -= fold[k];
             }
         }
     }
@@ -1039,6 +1067,8 @@ class LineWorker {
         const float* g_up = L.g_up;
         const float* g_dn = L.g_dn;
         int pf = 0, pb = 0;  // where the tangent walks start
+        int last_tile = -1;
+        float* tile_buf = nullptr;
         for (int k = 0; k < n; ++k) {
             const int hi = k - lag;
             if (hi >= 0) {
@@ -1070,7 +1100,7 @@ class LineWorker {
             if (!has_u && !has_d)
                 continue;
             const double sE = pos(k);
-            const double fold = d_.c * (kGeo ? sE * sE : (k * d_.step_m) * (k * d_.step_m));
+            const double fold = kGeo ? d_.c * sE * sE : d_.fold[k];
             // The tangent point from the eye of ground g, and the tangent of the line's horizon
             // seen from that eye, (Z_P − Z_E)/(s_P − s_E) + 2c s_E (in metres).
             const double tilt = 2 * d_.c * (kGeo ? sE : -k * d_.step_m);
@@ -1083,7 +1113,10 @@ class LineWorker {
                 const float est = static_cast<float>((v.z - zE) / (v.s - sE) * inv_step + tilt);
                 const int p = q - side;
                 const int col = mc ? a : p, row = mc ? p : a;
-                float* best = tiles_.cell(col, row);
+                const int tile = tiles_.id(col, row);
+                if (tile != last_tile)  // a line stays in one tile for up to 128 steps
+                    last_tile = tile, tile_buf = tiles_.ptr[tile];
+                float* best = tile_buf + Tiles::offset(col, row);
                 // The ray runs within half a cell of the line: beyond the near field its samples
                 // around the tangent point are within a few thousandths of the line's tangent,
                 // so when the near field beats that by more than the margin they cannot win.
@@ -1205,11 +1238,6 @@ class TileWorker {
     }
 
   private:
-    float ground(int a, int p) const {
-        return d_.major_cols ? dem_[static_cast<std::size_t>(p) * w_ + a]
-                             : dem_[static_cast<std::size_t>(a) * w_ + p];
-    }
-
     // The near field of row r on a geographic grid: the cell aspect and the metric of its row.
     const NearField& geographicNear(int r, TileScratch& ts) const {
         const GridMetric& metric = in_.metric;
