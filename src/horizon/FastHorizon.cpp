@@ -1023,6 +1023,10 @@ class LineWorker {
         int back_start = 0, front_lo = 0, front_hi = -1, pushed = -1, lo = 0;
         const int lag = k_exact_ + 1;
         const double reach_idx = kGeo ? reach_ : reach_ / d_.step_m;  // in pos() units
+        // Projected grids: pos(lo) − pos(k) = k − lo, a whole number, exceeds reach_idx exactly
+        // when it exceeds ⌊reach_idx⌋ (capped: an unlimited reach never pops).
+        const long reach_steps = static_cast<long>(std::floor(std::min(reach_idx, 1e15)));
+        const double c = d_.c, step = d_.step_m;
 
         auto frontInsert = [&](int x) {
             if (std::isnan(Z[x])) {
@@ -1088,7 +1092,8 @@ class LineWorker {
                 }
             }
             if (limited_) {
-                while (lo <= pushed && pos(lo) - pos(k) > reach_idx) {
+                while (lo <= pushed &&
+                       (kGeo ? pos(lo) - pos(k) > reach_idx : k - lo > reach_steps)) {
                     popFarthest();
                     ++lo;
                 }
@@ -1103,7 +1108,7 @@ class LineWorker {
             const double fold = kGeo ? d_.c * sE * sE : d_.fold[k];
             // The tangent point from the eye of ground g, and the tangent of the line's horizon
             // seen from that eye, (Z_P − Z_E)/(s_P − s_E) + 2c s_E (in metres).
-            const double tilt = 2 * d_.c * (kGeo ? sE : -k * d_.step_m);
+            const double tilt = 2 * c * (kGeo ? sE : -k * step);
             const int a = sign > 0 ? L.a_hi - k : L.a_lo + k;
             const int q = static_cast<int>(L.j + xi[a]);
             // side 0: the cell on the line's upper side (minor q), 1: the lower one (q − 1).
