@@ -105,8 +105,8 @@ namespace {
 constexpr int kTileShift = 7;           // 128: the GeoTIFF block of the horizon rasters
 constexpr int kTile = 1 << kTileShift;  // output tile side, cells
 constexpr int kTileCells = kTile * kTile;
-constexpr int kGroupLines = 16;  // lines swept by one task
-constexpr int kBatchGroups = 4;  // groups between two tile flushes
+constexpr int kGroupLines = 8;   // lines swept by one task
+constexpr int kBatchGroups = 8;  // groups between two tile flushes
 constexpr double kInf = std::numeric_limits<double>::infinity();
 constexpr float kInfF = std::numeric_limits<float>::infinity();
 constexpr float kNaNf = std::numeric_limits<float>::quiet_NaN();
