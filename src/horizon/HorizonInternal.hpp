@@ -112,40 +112,22 @@ class SummaryAccumulator {
   public:
     SummaryAccumulator(int width, int height, int directions, bool want_svf, bool want_dip);
     /// Adds direction results for cell index `i` (t = tangent of the angle; NaN = no data).
-    void add(std::size_t i, float angle_deg, double t) {
-        if (std::isnan(angle_deg))
-            return;
-        if (want_svf_) {
-            // sin(atan t) = t / √(1 + t²): no trigonometry per cell and direction.
-            if (t > 0)
-                svf_sum_.data()[i] += static_cast<float>(t / std::sqrt(1.0 + t * t));
-            if (count8_.empty())
-                ++count16_[i];
-            else
-                ++count8_[i];
-        }
-        if (want_dip_ && !(angle_deg >= min_angle_.data()[i]))
-            min_angle_.data()[i] = angle_deg;
-    }
+    void add(std::size_t i, float angle_deg, double t) { addRun(i, 1, &angle_deg, &t); }
     /// add() for the `n` cells from index i0 on (one run of a row), in loops without branches
-    /// that the compiler turns into vector code (the same sums, cell by cell).
+    /// that the compiler turns into vector code. A cell with no data (NaN) changes nothing.
     void addRun(std::size_t i0, int n, const float* angle_deg, const double* t) {
         if (want_svf_) {
             float* sum = svf_sum_.data() + i0;
             for (int k = 0; k < n; ++k) {
+                // sin(atan t) = t / √(1 + t²): no trigonometry per cell and direction.
                 const double tk = t[k];
-                const double s = tk / std::sqrt(1.0 + tk * tk);  // NaN for no data
+                const double s = tk / std::sqrt(1.0 + tk * tk);
                 sum[k] += tk > 0 ? static_cast<float>(s) : 0.0f;
             }
-            if (count8_.empty()) {
-                std::uint16_t* c = count16_.data() + i0;
-                for (int k = 0; k < n; ++k)
-                    c[k] += angle_deg[k] == angle_deg[k];
-            } else {
-                std::uint8_t* c = count8_.data() + i0;
-                for (int k = 0; k < n; ++k)
-                    c[k] += angle_deg[k] == angle_deg[k];
-            }
+            if (count8_.empty())
+                countData(count16_.data() + i0, n, angle_deg);
+            else
+                countData(count8_.data() + i0, n, angle_deg);
         }
         if (want_dip_) {
             float* m = min_angle_.data() + i0;
@@ -159,6 +141,12 @@ class SummaryAccumulator {
     HorizonSummary finish();
 
   private:
+    template <typename Count>
+    static void countData(Count* c, int n, const float* angle_deg) {
+        for (int k = 0; k < n; ++k)
+            c[k] += angle_deg[k] == angle_deg[k];  // false for NaN
+    }
+
     int width_, height_;
     bool want_svf_, want_dip_;
     Grid<float> svf_sum_;  // becomes the sky-view factor
