@@ -14,6 +14,7 @@
 #endif
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
 
 namespace lookfar::cli {
@@ -24,7 +25,9 @@ std::string& commandLine() {
 }
 
 void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
-    app->add_option("DEM", o.dem, "digital elevation model (any raster GDAL reads)")->required();
+    app->add_option("DEM", o.dem, "digital elevation model (any raster GDAL reads)")
+        ->type_name("FILE")
+        ->required();
     app->add_option("--crs", o.crs,
                     "CRS of coordinates on the command line and in CSVs (default: the DEM's), "
                     "x/easting/longitude first, e.g. EPSG:4326")
@@ -78,6 +81,7 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
         ->check(CLI::NonNegativeNumber)
         ->group("Engine");
     app->add_option("--summary", o.summary, "also write the summary as JSON to this file")
+        ->type_name("FILE")
         ->group("Output");
     app->add_flag("--json", o.json, "print the summary as JSON on stdout instead of the table")
         ->group("Output");
@@ -89,6 +93,38 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
                         "tiled, DEFLATE, predictor, compressed on every processor)")
             ->group("Output");
     }
+}
+
+void checkTextOptionsAreUtf8(const CLI::App& app) {
+    for (const CLI::Option* opt : app.get_options()) {
+        if (opt->get_type_name() == "FILE")
+            continue;
+        for (const std::string& value : opt->results()) {
+            if (invalidUtf8Offset(value) != std::string::npos) {
+                throw UsageError(opt->get_name() + ": the value '" + echoText(value) +
+                                 "' is not UTF-8 (" + describeInvalidUtf8(value) +
+                                 "); lookfar reads text as UTF-8");
+            }
+        }
+    }
+}
+
+nlohmann::json jsonSafe(const nlohmann::json& j) {
+    if (j.is_string())
+        return escapeInvalidUtf8(j.get<std::string>());
+    if (j.is_array()) {
+        nlohmann::json out = nlohmann::json::array();
+        for (const auto& v : j)
+            out.push_back(jsonSafe(v));
+        return out;
+    }
+    if (j.is_object()) {
+        nlohmann::json out = nlohmann::json::object();
+        for (auto it = j.begin(); it != j.end(); ++it)
+            out[escapeInvalidUtf8(it.key())] = jsonSafe(it.value());
+        return out;
+    }
+    return j;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -231,8 +267,8 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
 
     RunDescription& run = ctx.run;
     run.command = command;
-    run.command_line = commandLine();
-    run.dem_path = options.dem;
+    run.command_line = escapeInvalidUtf8(commandLine());  // paths may hold any bytes
+    run.dem_path = escapeInvalidUtf8(options.dem);
     run.crs_name = ctx.dem.crs.name;
     run.crs_code = ctx.dem.crs.epsg;
     run.width = ctx.dem.geometry.width();
@@ -394,6 +430,7 @@ void writeTextFile(const std::string& path, const std::string& content) {
 }
 
 void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& table) {
+    summary = jsonSafe(summary);  // output paths are echoed as given, in any bytes
     double elapsed =
         std::chrono::duration<double>(std::chrono::steady_clock::now() - ctx.start).count();
     summary["elapsed_s"] = std::round(elapsed * 1000.0) / 1000.0;

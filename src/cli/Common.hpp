@@ -63,6 +63,14 @@ struct CommonOptions {
 /// Adds the DEM positional argument and the common options to `app`.
 void addCommonOptions(CLI::App* app, CommonOptions& options, unsigned which = kAllCommon);
 
+/// Refuses (UsageError naming the option) a value of `app` that is not UTF-8. Options whose type
+/// name is FILE are paths, taken as the bytes the system gives: they are not checked.
+void checkTextOptionsAreUtf8(const CLI::App& app);
+
+/// `j` with every string and key made valid UTF-8 (a byte that breaks UTF-8 becomes \xNN), so
+/// that a path given as bytes can be echoed in JSON.
+nlohmann::json jsonSafe(const nlohmann::json& j);
+
 /// Progress on stderr: a bar on a terminal, a line every 10 % otherwise, nothing with --quiet.
 class TerminalProgress final : public Progress {
   public:

@@ -537,6 +537,7 @@ Command addHorizonCommand(CLI::App& root) {
     app->add_option("-o,--output", state->output,
                     "Float32 raster of N bands: band i + 1 is the horizon angle at azimuth "
                     "i*360/N, degrees above the eye's horizontal; -9999 no data")
+        ->type_name("FILE")
         ->group("Every cell");
     state->directions_opt =
         app->add_option("--directions", state->directions,
@@ -545,14 +546,17 @@ Command addHorizonCommand(CLI::App& root) {
             ->group("Every cell");
     app->add_option("--distance", state->distance,
                     "Float32 raster of N bands: ground distance to the horizon, metres")
+        ->type_name("FILE")
         ->group("Every cell");
     app->add_option("--svf", state->svf,
                     "Float32 raster: sky-view factor, 1 - mean over the directions of "
                     "sin(max(angle, 0))")
+        ->type_name("FILE")
         ->group("Every cell");
     app->add_option("--dip", state->dip,
                     "Float32 raster: largest depression of the horizon below the eye's "
                     "horizontal over the directions, degrees (negative: above it all round)")
+        ->type_name("FILE")
         ->group("Every cell");
     app->add_option("--at", state->at,
                     "X,Y in --crs: the 360° horizon of the cell that holds this point")
@@ -564,10 +568,12 @@ Command addHorizonCommand(CLI::App& root) {
     app->add_option("--csv", state->csv,
                     "CSV of the horizon of --at: azimuth_deg,angle_deg,distance_m,x,y,"
                     "elevation_m (x, y of the horizon point in --crs)")
+        ->type_name("FILE")
         ->group("One spot");
     app->add_option("--plot", state->plot,
                     "SVG panorama of the horizon of --at with the eye's horizontal and the "
                     "sea-horizon dip")
+        ->type_name("FILE")
         ->group("One spot");
     app->footer(
         "\nEvery cell: the eye stands at the cell's centre, --observer-height above its ground.\n"

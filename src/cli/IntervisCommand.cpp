@@ -228,16 +228,19 @@ Command addIntervisCommand(CLI::App& root) {
         ->description("height of a station above the ground when its CSV row gives none, metres");
     app->add_option("--stations", state->stations,
                     "CSV of stations: name,x,y and optional height (metres above ground)")
+        ->type_name("FILE")
         ->required()
         ->group("Stations");
     app->add_option("-o,--output", state->matrix,
                     "matrix CSV, one row per ordered pair "
                     "(from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg)")
+        ->type_name("FILE")
         ->required()
         ->group("Output");
     app->add_option("--lines", state->lines,
                     "GeoJSON (RFC 7946, WGS 84 lon/lat) with a line for every pair that sees "
                     "each other")
+        ->type_name("FILE")
         ->group("Output");
     app->footer(
         "\nEach station stands at the centre of its DEM cell; the pair i,j is judged by the "

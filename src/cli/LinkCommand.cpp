@@ -379,8 +379,11 @@ Command addLinkCommand(CLI::App& root) {
     app->add_option("--csv", state->csv,
                     "write the profile as CSV (distance_m,x,y,terrain_m,earth_bulge_m,"
                     "sightline_m,clearance_m,fresnel_radius_m,fresnel_fraction)")
+        ->type_name("FILE")
         ->group("Output");
-    app->add_option("--plot", state->plot, "write the profile as an SVG plot")->group("Output");
+    app->add_option("--plot", state->plot, "write the profile as an SVG plot")
+        ->type_name("FILE")
+        ->group("Output");
     app->footer(
         "\nThe terrain is sampled at most half a cell apart along the geodesic (geographic DEMs) "
         "or the straight map line (projected DEMs), with bilinear heights; curvature is the exact "

@@ -261,6 +261,7 @@ Command addSelectCommand(CLI::App& root) {
             "metres");
     app->add_option("--candidates", state->candidates,
                     "CSV of candidate sites: name,x,y and optional height (metres above ground)")
+        ->type_name("FILE")
         ->required()
         ->group("Choice");
     app->add_option("--count", state->count, "choose at most K sites (1 ≤ K ≤ candidates)")
@@ -272,15 +273,18 @@ Command addSelectCommand(CLI::App& root) {
     app->add_option("--weight", state->weight,
                     "raster on the DEM's grid of per-cell weights ≥ 0 (e.g. priority or "
                     "population) to maximise instead of ground area; no-data counts 0")
+        ->type_name("FILE")
         ->group("Choice");
     app->add_option("-o,--output", state->output,
                     "coverage count raster (UInt16: how many chosen sites see each cell; 65535 "
                     "outside reach of every candidate or on DEM no-data)")
+        ->type_name("FILE")
         ->required()
         ->group("Output");
     app->add_option("--csv", state->csv,
                     "ranked CSV (rank,name,x,y,marginal_area_m2,cumulative_area_m2,"
                     "cumulative_percent)")
+        ->type_name("FILE")
         ->group("Output");
     app->footer(
         "\nGreedy choice: each step takes the candidate whose viewshed adds the most ground not "

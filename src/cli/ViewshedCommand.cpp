@@ -315,6 +315,7 @@ Command addViewshedCommand(CLI::App& root) {
     auto* sites = app->add_option("--sites", state->sites,
                                   "CSV of sites: name,x,y and optional height (metres above "
                                   "ground; overrides --observer-height)")
+                      ->type_name("FILE")
                       ->group("Observers");
     observer->excludes(sites);
     app->get_option("--observer-height")
@@ -322,15 +323,18 @@ Command addViewshedCommand(CLI::App& root) {
     app->add_option("-o,--output", state->output,
                     "visibility raster (Byte: 1 visible, 0 hidden, 255 no data); with --sites a "
                     "count raster (UInt16: sites that see the cell, 65535 no data)")
+        ->type_name("FILE")
         ->required()
         ->group("Output");
     app->add_option("--margin", state->margin,
                     "Float32 raster of margins, metres: DEM + target height minus the limiting "
                     "sightline (>= 0 visible); with --sites the largest over the sites")
+        ->type_name("FILE")
         ->group("Output");
     app->add_option("--angle", state->angle,
                     "Float32 raster of the elevation angle from the eye to each target point, "
                     "degrees (single observer)")
+        ->type_name("FILE")
         ->group("Output");
     app->footer(
         "\nEngines: 'fast' (the default) follows wedges of sightlines outward from the observer,\n"

@@ -60,6 +60,7 @@ int main(int argc, char** argv) {
     try {
         for (auto& c : commands) {
             if (c.app->parsed()) {
+                cli::checkTextOptionsAreUtf8(*c.app);
                 c.run();
                 return interruptFlag().load() ? kExitInterrupted : kExitOk;
             }

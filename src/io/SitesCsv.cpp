@@ -7,6 +7,7 @@
 #include <fstream>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
 
 namespace lookfar {
@@ -80,6 +81,11 @@ std::vector<Site> readSitesCsv(const std::string& path) {
             line.pop_back();
         if (line_number == 1 && line.rfind("\xEF\xBB\xBF", 0) == 0)
             line.erase(0, 3);  // BOM
+        if (invalidUtf8Offset(line) != std::string::npos) {
+            throw InputError(path + ", line " + std::to_string(line_number) +
+                             ": the text is not UTF-8 (" + describeInvalidUtf8(line) +
+                             " of the line); save the file as UTF-8");
+        }
         if (trim(line).empty())
             continue;
         auto fields = splitCsvRecord(line, path, line_number);
