@@ -1,0 +1,53 @@
+#pragma once
+// lookfar's umbrella header: every public header of the library, for programs that use it as a
+// package (find_package(lookfar) → lookfar::lookfar, or pkg-config lookfar). Inside lookfar
+// include the headers you need instead. A test (umbrella_header_lists_every_public_header)
+// fails when a header under include/lookfar/ is missing here: add new headers in their layer.
+#include "lookfar/Version.hpp"
+
+// core
+#include "lookfar/core/Ellipsoid.hpp"
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/core/FractalTerrain.hpp"
+#include "lookfar/core/Grid.hpp"
+#include "lookfar/core/GridGeometry.hpp"
+#include "lookfar/core/Progress.hpp"
+#include "lookfar/core/Units.hpp"
+
+// earth
+#include "lookfar/earth/EarthModel.hpp"
+
+// viewshed
+#include "lookfar/viewshed/MultiViewshed.hpp"
+#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/viewshed/SightlineRule.hpp"
+#include "lookfar/viewshed/SightlineSamples.hpp"
+#include "lookfar/viewshed/Viewshed.hpp"
+
+// horizon
+#include "lookfar/horizon/AsyncSink.hpp"
+#include "lookfar/horizon/HorizonProfile.hpp"
+#include "lookfar/horizon/HorizonScan.hpp"
+
+// link
+#include "lookfar/link/Intervisibility.hpp"
+#include "lookfar/link/PathProfile.hpp"
+
+// siting
+#include "lookfar/siting/CoverageSet.hpp"
+#include "lookfar/siting/GreedyCoverage.hpp"
+#include "lookfar/siting/SiteSelection.hpp"
+
+// stats
+#include "lookfar/stats/ViewshedStats.hpp"
+
+// io
+#include "lookfar/io/Crs.hpp"
+#include "lookfar/io/Dem.hpp"
+#include "lookfar/io/RasterWriter.hpp"
+#include "lookfar/io/SitesCsv.hpp"
+
+// report
+#include "lookfar/report/Summary.hpp"
+#include "lookfar/report/SvgPlot.hpp"
+#include "lookfar/report/TextTable.hpp"
