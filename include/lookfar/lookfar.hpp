@@ -12,6 +12,7 @@
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
 #include "lookfar/core/Progress.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
 
 // earth
