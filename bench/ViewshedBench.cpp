@@ -1,7 +1,8 @@
 // lookfar_bench viewshed: speed, agreement and memory of `lookfar viewshed` (issue 3's targets).
 //
 // For seeded fractal DEMs (β 2.2, 0–800 m, 10 m cells) of 1024², 2048², 4096² and 8192² cells,
-// observer in the middle 10 m above the ground (DESIGN.md's notes on engines), unlimited reach:
+// observer in the middle 10 m above the ground (docs/design.md's notes on engines), unlimited
+// reach:
 //   - the fast engine in memory: cells per second (median of runs), and the same with a 300 m
 //     eye, which sees more and leaves more cells to the exact re-check;
 //   - the reference engine (up to 2048²): cells per second, the speed-up of the fast engine and

@@ -19,9 +19,9 @@ Command addSelectCommand(CLI::App& root);
 /// Every subcommand, in the order --help lists them.
 std::vector<Command> allCommands(CLI::App& root);
 
-/// The geometry conventions, printed in --help (DESIGN.md: state them in --help).
+/// The geometry conventions, printed in --help (docs/design.md: state them in --help).
 std::string conventionsText();
-/// The cautions of DESIGN.md, printed at the foot of --help.
+/// The cautions of docs/design.md, printed at the foot of --help.
 std::string cautionText();
 
 }  // namespace lookfar::cli

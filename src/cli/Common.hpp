@@ -1,6 +1,6 @@
 #pragma once
-// What the subcommands share: the common options of DESIGN.md, opening the DEM, placing points,
-// writing rasters and summaries, progress on stderr. No math lives here.
+// What the subcommands share: the common options of docs/design.md, opening the DEM, placing
+// points, writing rasters and summaries, progress on stderr. No math lives here.
 #include <CLI/CLI.hpp>
 
 #include <chrono>
@@ -134,7 +134,7 @@ struct PlacedSites {
     std::vector<Observer> observers;   ///< one per row; height = the row's or --observer-height
     std::vector<MapPoint> points_dem;  ///< each row's point in the DEM's CRS
 };
-/// Reads a sites CSV (DESIGN.md) and places every row on the DEM. `role` names a row in
+/// Reads a sites CSV (docs/design.md) and places every row on the DEM. `role` names a row in
 /// messages ("site", "station", "candidate"). With `unique_because` non-empty, a repeated name is
 /// bad input naming both lines and the reason ("the matrix needs unique names").
 PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const std::string& role,

@@ -24,7 +24,7 @@ namespace lookfar::cli {
 
 namespace {
 
-constexpr float kHorizonNoData = -9999.0f;  // DESIGN.md: horizon rasters use −9999
+constexpr float kHorizonNoData = -9999.0f;  // docs/design.md: horizon rasters use −9999
 
 struct HorizonState {
     CommonOptions options;

@@ -1,5 +1,6 @@
 // lookfar: visibility and horizon layers over a curved, refracting Earth.
-// A thin main over the library: parse, run one subcommand, map errors to DESIGN.md's exit codes.
+// A thin main over the library: parse, run one subcommand, map errors to docs/design.md's exit
+// codes.
 #include <CLI/CLI.hpp>
 
 #include <csignal>

@@ -7,9 +7,9 @@
 // For every cell and direction the ray from the centre of O is followed across the grid; the
 // terrain is sampled where it crosses each column line and each row line through cell centres
 // (linear interpolation between the two neighbouring centres), exactly the samples of the
-// sightline rule (DESIGN.md). The horizon is the sample with the largest t; ties go to the nearer
-// sample. Cost O(W + H) per cell and direction: it is the yardstick of the fast engine and the
-// engine of `lookfar horizon --at`, not a production path for large grids.
+// sightline rule (docs/design.md). The horizon is the sample with the largest t; ties go to the
+// nearer sample. Cost O(W + H) per cell and direction: it is the yardstick of the fast engine and
+// the engine of `lookfar horizon --at`, not a production path for large grids.
 //
 // Output is streamed in strips of rows, one direction after another, so memory does not grow
 // with the number of directions.

@@ -1,5 +1,6 @@
-// `lookfar horizon` run on the built binary: outside values through the whole tool (REFERENCES.md
-// rows in the comments), the layout of its outputs, and the bad-input rules of DESIGN.md.
+// `lookfar horizon` run on the built binary: outside values through the whole tool
+// (docs/references.md rows in the comments), the layout of its outputs, and the bad-input rules of
+// docs/design.md.
 #include <gdal.h>
 #include <gtest/gtest.h>
 
@@ -99,7 +100,7 @@ std::vector<std::vector<std::string>> readCsv(const std::string& path) {
 
 }  // namespace
 
-// REFERENCES.md row 1: Bowditch (NGA Pub. 9), "Distance of the horizon", D(nmi) = 1.17 √h(ft),
+// docs/references.md row 1: Bowditch (NGA Pub. 9), "Distance of the horizon", D(nmi) = 1.17 √h(ft),
 // reproduced by k ≈ 0.17 (from memory; tolerance 1 %). flat_sea.tif is 0 m everywhere; from
 // 100 ft the sea horizon (21.7 km) lies inside the grid in every direction.
 TEST(HorizonCliTest, FlatSeaHorizonDistanceMatchesBowditch) {
@@ -127,7 +128,7 @@ TEST(HorizonCliTest, FlatSeaHorizonDistanceMatchesBowditch) {
                 0.01 * bowditch_m);
 }
 
-// REFERENCES.md row 2: The Nautical Almanac, dip D(′) = 1.76 √h(m), reproduced by k ≈ 0.165
+// docs/references.md row 2: The Nautical Almanac, dip D(′) = 1.76 √h(m), reproduced by k ≈ 0.165
 // (from memory; tolerance 1 %): the terrain horizon of a flat sea lies that far below the eye's
 // horizontal all round, and the summary's sea-horizon dip (exact sphere formula) agrees.
 TEST(HorizonCliTest, FlatSeaDipMatchesNauticalAlmanac) {
@@ -146,8 +147,8 @@ TEST(HorizonCliTest, FlatSeaDipMatchesNauticalAlmanac) {
     EXPECT_EQ(j["horizon"]["directions"], 12);
 }
 
-// REFERENCES.md row 12: Zakšek, Oštir & Kokalj (2011), SVF = 1 − (1/n) Σ sin γᵢ; on the floor of
-// v_valley.tif (side slopes β = 30°, eye on the ground, flat Earth) γ(θ) = atan(tan β |sin θ|).
+// docs/references.md row 12: Zakšek, Oštir & Kokalj (2011), SVF = 1 − (1/n) Σ sin γᵢ; on the floor
+// of v_valley.tif (side slopes β = 30°, eye on the ground, flat Earth) γ(θ) = atan(tan β |sin θ|).
 TEST(HorizonCliTest, VValleySkyViewFactorRaster) {
     ScratchDir dir;
     const std::string svf = dir.file("svf.tif");
@@ -162,8 +163,8 @@ TEST(HorizonCliTest, VValleySkyViewFactorRaster) {
     EXPECT_NEAR(r.at(0, 150, 20), 1.0 - sum / 16, 1e-5);  // anywhere along the floor
 }
 
-// DESIGN.md outputs: N bands with the azimuth in their description, −9999 no data, metadata with
-// every parameter; the sky-view factor and dip rasters have one band.
+// docs/design.md outputs: N bands with the azimuth in their description, −9999 no data, metadata
+// with every parameter; the sky-view factor and dip rasters have one band.
 TEST(HorizonCliTest, RastersHaveOneBandPerDirectionWithItsAzimuth) {
     ScratchDir dir;
     const std::string angle = dir.file("h.tif"), dist = dir.file("d.tif"),
@@ -212,7 +213,7 @@ TEST(HorizonCliTest, RastersHaveOneBandPerDirectionWithItsAzimuth) {
     EXPECT_GT(j["svf"]["mean"].get<double>(), 0.5);
 }
 
-// DESIGN.md: results are identical for any --threads, for both engines.
+// docs/design.md: results are identical for any --threads, for both engines.
 TEST(HorizonCliTest, IdenticalRastersForOneAndTwoThreads) {
     ScratchDir dir;
     for (std::string method : {"fast", "reference"}) {
@@ -310,7 +311,7 @@ TEST(HorizonCliTest, GeographicDemAndCoordinatesInAnotherCrs) {
 }
 
 // ---------------------------------------------------------------------------------------------
-// Bad input (DESIGN.md exit codes): one clear sentence, the right code, no output left behind.
+// Bad input (docs/design.md exit codes): one clear sentence, the right code, no output left behind.
 
 namespace {
 void expectRefused(const std::vector<std::string>& args, int code, const std::string& needle,

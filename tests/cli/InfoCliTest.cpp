@@ -1,4 +1,4 @@
-// `lookfar info` and the bad-input rules of DESIGN.md, run on the built binary.
+// `lookfar info` and the bad-input rules of docs/design.md, run on the built binary.
 #include <gtest/gtest.h>
 
 #include <nlohmann/json.hpp>

@@ -1,6 +1,7 @@
 // Bad input in every form a user can type it (issue 12): one sentence in lookfar's words naming
-// the option, file, line or value, DESIGN.md's exit code (2 usage, 3 input), nothing left behind.
-// Expected behaviour is the project's contract (DESIGN.md "Exit codes", "CSV of sites"); the
+// the option, file, line or value, docs/design.md's exit code (2 usage, 3 input), nothing left
+// behind.
+// Expected behaviour is the project's contract (docs/design.md "Exit codes", "CSV of sites"); the
 // byte rules of UTF-8 are RFC 3629.
 #include <gtest/gtest.h>
 

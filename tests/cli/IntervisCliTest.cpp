@@ -1,5 +1,5 @@
-// `lookfar intervis` on the built binary: the matrix of DESIGN.md, distances against PROJ's
-// geodesic solver (REFERENCES.md row 11), GeoJSON in WGS 84 lon/lat as RFC 7946 asks (checked
+// `lookfar intervis` on the built binary: the matrix of docs/design.md, distances against PROJ's
+// geodesic solver (docs/references.md row 11), GeoJSON in WGS 84 lon/lat as RFC 7946 asks (checked
 // with PROJ's own transform), the radio horizon over the flat sea (row 4), bad input.
 #include <gtest/gtest.h>
 #include <geodesic.h>
@@ -230,7 +230,7 @@ TEST(IntervisCliTest, DuplicateStationNamesAreBadInput) {
     EXPECT_FALSE(fileExists(dir.file("m.csv")));
 }
 
-// Real terrain (REFERENCES.md row 13: the USGS 3″ sample, converted at test time): `link`
+// Real terrain (docs/references.md row 13: the USGS 3″ sample, converted at test time): `link`
 // (bilinear samples every half cell, exact sphere) and `intervis` (the sightline rule's row and
 // column crossings, parabolic drop) are two independent implementations of "visible"; on every
 // pair whose verdict is not within a few metres of the limit they must agree.

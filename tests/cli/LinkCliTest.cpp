@@ -1,6 +1,6 @@
 // `lookfar link` on the built binary: path length and azimuths against PROJ's geodesic solver
-// (REFERENCES.md row 11, Karney 2013, called here directly), the outputs of DESIGN.md, and the
-// bad-input rules.
+// (docs/references.md row 11, Karney 2013, called here directly), the outputs of docs/design.md,
+// and the bad-input rules.
 #include <gtest/gtest.h>
 #include <geodesic.h>
 #include <proj.h>

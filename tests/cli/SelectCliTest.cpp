@@ -1,4 +1,4 @@
-// `lookfar select` on the built binary: the ranked CSV and the count raster of DESIGN.md (read
+// `lookfar select` on the built binary: the ranked CSV and the count raster of docs/design.md (read
 // back with GDAL), weights, and the bad-input rules (exit codes, nothing written).
 #include <gtest/gtest.h>
 #include <gdal.h>

@@ -1,4 +1,4 @@
-// `lookfar viewshed` on the built binary, checked against outside values (../shared/REFERENCES.md
+// `lookfar viewshed` on the built binary, checked against outside values (docs/references.md
 // rows named beside each check) and the analytic rasters of test_rasters/ (exact geometry).
 #include <gdal.h>
 #include <gdal_utils.h>
@@ -17,7 +17,7 @@ using namespace lookfar::testing;
 
 namespace {
 
-constexpr double kR = 6371008.8;  // mean Earth radius R of REFERENCES.md, metres
+constexpr double kR = 6371008.8;  // mean Earth radius R of docs/references.md, metres
 constexpr double kMetresPerFoot = 0.3048;
 constexpr double kMetresPerNmi = 1852.0;
 
@@ -84,7 +84,7 @@ std::string metadataItem(const std::string& path, const std::string& key) {
 
 }  // namespace
 
-// REFERENCES.md row 9 (exact geometry): with k = 0 the farthest visible cell over a flat sea
+// docs/references.md row 9 (exact geometry): with k = 0 the farthest visible cell over a flat sea
 // lies at √(2R′h) + √(2R′T), R′ = R/(1 − k), within one cell (the engines' parabolic drop
 // d²/2R′ gives exactly this distance).
 TEST(ViewshedCliTest, FlatSeaHorizonDistanceExactGeometry) {
@@ -97,8 +97,8 @@ TEST(ViewshedCliTest, FlatSeaHorizonDistanceExactGeometry) {
     }
 }
 
-// REFERENCES.md row 1: Bowditch, The American Practical Navigator (NGA Pub. 9), "Distance of the
-// horizon": D(nmi) = 1.17 √h(ft), reproduced by k ≈ 0.17 (from memory; tolerance 1 %).
+// docs/references.md row 1: Bowditch, The American Practical Navigator (NGA Pub. 9), "Distance of
+// the horizon": D(nmi) = 1.17 √h(ft), reproduced by k ≈ 0.17 (from memory; tolerance 1 %).
 TEST(ViewshedCliTest, FlatSeaHorizonMatchesBowditchTable) {
     ScratchDir dir;
     for (double h_ft : {50.0, 100.0}) {
@@ -108,7 +108,7 @@ TEST(ViewshedCliTest, FlatSeaHorizonMatchesBowditchTable) {
     }
 }
 
-// REFERENCES.md row 4: ITU-R effective Earth radius, median factor 4/3 (k = 0.25): radio
+// docs/references.md row 4: ITU-R effective Earth radius, median factor 4/3 (k = 0.25): radio
 // horizon d(km) = 4.12 √h(m) (from memory; tolerance 1 %).
 TEST(ViewshedCliTest, FlatSeaRadioHorizonFourThirdsEarth) {
     ScratchDir dir;
@@ -201,9 +201,10 @@ TEST(ViewshedCliTest, MetresAndUsSurveyFeetGiveTheSameViewshed) {
     EXPECT_GT(om["visible_fraction"].get<double>(), 0.01);
 }
 
-// Geographic DEM (the USGS sample, REFERENCES.md row 13): the farthest visible distance the
+// Geographic DEM (the USGS sample, docs/references.md row 13): the farthest visible distance the
 // summary reports is the engines' fast distance, within 0.1 % or 1 m of PROJ's geodesic
-// (REFERENCES.md row 11, geod_inverse, Karney 2013) to the farthest visible cell of the raster.
+// (docs/references.md row 11, geod_inverse, Karney 2013) to the farthest visible cell of the
+// raster.
 TEST(ViewshedCliTest, GeographicDistancesAgreeWithPROJGeodesic) {
     ScratchDir dir;
     const std::string out = dir.file("usgs.tif");
@@ -235,7 +236,7 @@ TEST(ViewshedCliTest, GeographicDistancesAgreeWithPROJGeodesic) {
     EXPECT_GT(fast, 5000.0);
 }
 
-// REFERENCES.md row 14 (reference library, GDAL's warper): the USGS sample warped to its UTM
+// docs/references.md row 14 (reference library, GDAL's warper): the USGS sample warped to its UTM
 // zone (EPSG:32616; cubic resampling, GDAL's default resolution) gives visible areas within a
 // few per cent (3 %) of the geographic run. One point alone can differ much more on this rough
 // terrain (resampling moves ridge crests and the eye's cell), so the check sums four observers;
@@ -272,7 +273,7 @@ TEST(ViewshedCliTest, ReprojectedDemGivesTheSameVisibleArea) {
         << "geographic " << totals[0] << " m², UTM " << totals[1] << " m²";
 }
 
-// DESIGN.md's summary keys, the raster's values and its metadata.
+// docs/design.md's summary keys, the raster's values and its metadata.
 TEST(ViewshedCliTest, SummaryKeysRasterValuesAndMetadata) {
     ScratchDir dir;
     const std::string out = dir.file("v.tif"), margin = dir.file("m.tif"),
@@ -362,7 +363,7 @@ TEST(ViewshedCliTest, ObserverCoordinatesInAnyCrs) {
     EXPECT_DOUBLE_EQ(b["x"].get<double>(), -4.08734051105243);  // as given, in --crs
 }
 
-// DESIGN.md: results are identical for any --threads (one observer, and several sites, which
+// docs/design.md: results are identical for any --threads (one observer, and several sites, which
 // run in parallel when there are at least as many sites as threads).
 TEST(ViewshedCliTest, IdenticalRastersForAnyThreadCount) {
     ScratchDir dir;

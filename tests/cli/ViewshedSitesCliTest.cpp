@@ -1,4 +1,4 @@
-// `lookfar viewshed --sites` on the demo sites, and the bad-input rules of DESIGN.md for the
+// `lookfar viewshed --sites` on the demo sites, and the bad-input rules of docs/design.md for the
 // viewshed command: one clear sentence, DESIGN's exit code, no file left at any output path.
 #include <gdal.h>
 #include <ogr_srs_api.h>

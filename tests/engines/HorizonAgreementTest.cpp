@@ -1,6 +1,6 @@
 // The fast horizon engine against the reference engine (brute-force marching over the sightline
-// rule's samples, DESIGN.md). The bar: mean absolute error ≤ 0.05° and 99 % of values
-// within 0.25°, on rough terrain and on the USGS sample (REFERENCES.md row 13). Also: the same
+// rule's samples, docs/design.md). The bar: mean absolute error ≤ 0.05° and 99 % of values
+// within 0.25°, on rough terrain and on the USGS sample (docs/references.md row 13). Also: the same
 // directions have data in both, the output is delivered cell by cell exactly once per direction,
 // and results are identical for any number of threads.
 #include <gtest/gtest.h>
@@ -192,7 +192,7 @@ TEST(HorizonAgreementTest, EveryCellIsDeliveredOncePerDirection) {
     }
 }
 
-// DESIGN.md style rule: results are identical for any --threads (bit for bit).
+// docs/design.md style rule: results are identical for any --threads (bit for bit).
 TEST(HorizonAgreementTest, IdenticalResultsForOneAndTwoThreads) {
     const Grid<float> z = roughTerrain(200, 5);
     const EarthModel earth(EarthShape::Ellipsoid, Ellipsoid::wgs84(), EarthModel::kMeanRadiusM,

@@ -1,4 +1,4 @@
-// The horizon engines (HorizonScan) against outside values: ../shared/REFERENCES.md rows in the
+// The horizon engines (HorizonScan) against outside values: docs/references.md rows in the
 // comments, and analytic terrains whose horizon is exact geometry. Every check runs both the
 // reference engine and the fast one.
 #include <geodesic.h>
@@ -292,16 +292,17 @@ TEST(HorizonTest, GeographicAzimuthsAreMeasuredOnTheGround) {
             const double s = std::sin(horizonAzimuthDeg(i, 8) * kDegToRad);
             EXPECT_NEAR(c.angle_deg[i], std::atan(40.0 * s / a_m) * kRadToDeg, 0.01)
                 << name(engine) << " azimuth " << horizonAzimuthDeg(i, 8);
-            // The engines' fast distance: within 0.1 % of the ellipsoidal geodesic (DESIGN.md).
+            // The engines' fast distance: within 0.1 % of the ellipsoidal geodesic
+            // (docs/design.md).
             EXPECT_NEAR(c.distance_m[i], a_m / s, 0.001 * a_m / s)
                 << name(engine) << " azimuth " << horizonAzimuthDeg(i, 8);
         }
     }
 }
 
-// DESIGN.md no-data rules (common practice, no source): a direction with no terrain sample inside
-// the DEM is no data and is left out of the sky-view factor and the dip; a cell on no data is no
-// data; no-data samples never block.
+// docs/design.md no-data rules (common practice, no source): a direction with no terrain sample
+// inside the DEM is no data and is left out of the sky-view factor and the dip; a cell on no data
+// is no data; no-data samples never block.
 TEST(HorizonTest, NoDataDirectionsAreLeftOutOfSkyViewFactorAndDip) {
     Grid<float> z(60, 40, 10.0f);
     const float nan = std::numeric_limits<float>::quiet_NaN();

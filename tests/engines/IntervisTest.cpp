@@ -1,5 +1,5 @@
 // The intervisibility matrix of `lookfar intervis` against outside values (../shared/
-// REFERENCES.md rows in the comments) and against the reference sightline rule it is built on.
+// docs/references.md rows in the comments) and against the reference sightline rule it is built on.
 #include <gtest/gtest.h>
 
 #ifdef _OPENMP
@@ -86,7 +86,7 @@ Network fractalNetwork() {
 }
 }  // namespace
 
-// The matrix is the sightline rule (DESIGN.md's reference definition) for every ordered pair,
+// The matrix is the sightline rule (docs/design.md's reference definition) for every ordered pair,
 // each station's height its eye when it looks and its target when it is looked at.
 TEST(IntervisTest, EveryOrderedPairIsTheSightlineRuleVerdict) {
     const Network net = fractalNetwork();

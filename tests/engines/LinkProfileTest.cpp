@@ -1,4 +1,4 @@
-// The path profile of `lookfar link` against outside values (../shared/REFERENCES.md rows in
+// The path profile of `lookfar link` against outside values (docs/references.md rows in
 // the comments) and exact sphere geometry.
 #include <gtest/gtest.h>
 
@@ -225,7 +225,7 @@ TEST(LinkProfileTest, BilinearHeightsReproduceATiltedPlane) {
                 1e-5);
 }
 
-// No-data rules of DESIGN.md: a no-data sample does not block; an end on no-data is bad input.
+// No-data rules of docs/design.md: a no-data sample does not block; an end on no-data is bad input.
 TEST(LinkProfileTest, NoDataDoesNotBlockButAnEndOnNoDataIsBadInput) {
     const double cell = 10;
     Grid<float> g(201, 3, 0.0f);

@@ -1,6 +1,6 @@
-// The fast viewshed engine against the reference engine (the sightline rule of DESIGN.md, the
+// The fast viewshed engine against the reference engine (the sightline rule of docs/design.md, the
 // oracle). The bar: ≥ 99.5 % of cells agree on rough synthetic terrain and on the USGS
-// sample (REFERENCES.md row 13), 100 % on the analytic DEMs, margins within 0.5 m on 99 % of
+// sample (docs/references.md row 13), 100 % on the analytic DEMs, margins within 0.5 m on 99 % of
 // cells, identical results for any number of threads. The fast engine is built to reproduce the
 // reference exactly, so these tests also report and check exact equality.
 #include <gtest/gtest.h>
@@ -106,7 +106,7 @@ Agreement checkAgainstReference(const Grid<float>& dem, const GridGeometry& g,
 }
 
 Grid<float> roughTerrain(int size, std::uint64_t seed) {
-    FractalSpec spec;  // β 2.2, 0–800 m: "rough at every scale" (DESIGN.md, notes on engines)
+    FractalSpec spec;  // β 2.2, 0–800 m: "rough at every scale" (docs/design.md, notes on engines)
     spec.width = spec.height = size;
     spec.seed = seed;
     return fractalTerrain(spec);
@@ -114,7 +114,7 @@ Grid<float> roughTerrain(int size, std::uint64_t seed) {
 
 }  // namespace
 
-// Rough fractal terrain as in DESIGN.md's notes on engines (β 2.2, 10 m cells, 0–800 m,
+// Rough fractal terrain as in docs/design.md's notes on engines (β 2.2, 10 m cells, 0–800 m,
 // observer 10 m above the centre, k = 0.13), on a smaller grid to keep the test quick.
 TEST(ViewshedAgreementTest, RoughFractalTerrainMatchesReference) {
     const int n = 301;
@@ -208,8 +208,8 @@ TEST(ViewshedAgreementTest, AnalyticDemsAgreeOnEveryCell) {
     }
 }
 
-// Real terrain on a geographic grid: the USGS 3″ sample of REFERENCES.md row 13 (open dataset),
-// ellipsoidal distances from the CRS; observer on a high cell and on a low one.
+// Real terrain on a geographic grid: the USGS 3″ sample of docs/references.md row 13 (open
+// dataset), ellipsoidal distances from the CRS; observer on a high cell and on a low one.
 TEST(ViewshedAgreementTest, UsgsSampleGeographicMatchesReference) {
     Dem dem = readTestDem(lookfar::testing::usgsSample());
     ASSERT_TRUE(dem.crs.geographic);

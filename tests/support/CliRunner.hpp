@@ -25,7 +25,7 @@ inline std::string sourceDir() {
 inline std::string testRaster(const std::string& name) {
     return sourceDir() + "/test_rasters/" + name;
 }
-/// The USGS sample of REFERENCES.md row 13, converted at test time by the ctest fixture.
+/// The USGS sample of docs/references.md row 13, converted at test time by the ctest fixture.
 inline std::string usgsSample() {
     return std::string(LOOKFAR_TEST_DATA_DIR) + "/usgs_jacksboro.tif";
 }

@@ -1,4 +1,4 @@
-// EarthModel against the outside values of ../shared/REFERENCES.md (row numbers in comments).
+// EarthModel against the outside values of docs/references.md (row numbers in comments).
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -131,7 +131,7 @@ TEST(EarthModelTest, DuctingRefractionIsRefused) {
 }
 
 // The parabolic drop differs from the exact sphere by 5d⁴/(24R′³): under 0.1 m at 100 km
-// (DESIGN.md; exact geometry).
+// (docs/design.md; exact geometry).
 TEST(EarthModelTest, ParabolicDropWithinTenCentimetresAtHundredKilometres) {
     EarthModel earth = sphereWithK(0.13);
     double r_eff = earth.effectiveRadius(45, 0);

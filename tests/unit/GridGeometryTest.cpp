@@ -1,5 +1,5 @@
 // GridGeometry's cell sizes, areas and fast distances against PROJ's geodesic solver
-// (REFERENCES.md row 11: geod_inverse / geod_polygonarea, Karney 2013; reference library).
+// (docs/references.md row 11: geod_inverse / geod_polygonarea, Karney 2013; reference library).
 #include <gtest/gtest.h>
 #include <geodesic.h>
 
@@ -44,7 +44,7 @@ TEST(GridGeometryTest, ProjectedCellCentresAndSizesInFeet) {
     EXPECT_FALSE(g.containsMap(2000.1, 4500));
 }
 
-// Fast distance and azimuth of the engines: within 0.1 % or 1 m of geod_inverse (DESIGN.md).
+// Fast distance and azimuth of the engines: within 0.1 % or 1 m of geod_inverse (docs/design.md).
 TEST(GridGeometryTest, FastDistanceWithinTenthOfAPercentOfPROJGeodesic) {
     for (double north : {5.0, 36.7, 47.1, 64.0}) {
         GridGeometry g = geographicGrid(11.0, north, 1.0 / 1200.0, 2400, 2400);  // 2° square

@@ -1,12 +1,12 @@
 #pragma once
 // The error hierarchy of lookfar. Every error a user can cause maps to one exit code of
-// DESIGN.md; main() catches them once. The first sentence of what() is the message shown.
+// docs/design.md; main() catches them once. The first sentence of what() is the message shown.
 #include <stdexcept>
 #include <string>
 
 namespace lookfar {
 
-/// Exit codes of DESIGN.md.
+/// Exit codes of docs/design.md.
 enum ExitCode : int {
     kExitOk = 0,
     kExitInternal = 1,

@@ -47,7 +47,7 @@ class EarthModel {
   public:
     /// Mean Earth radius R₁ of the IUGG, metres.
     static constexpr double kMeanRadiusM = 6371008.8;
-    /// Refraction coefficient of light over land (DESIGN.md default).
+    /// Refraction coefficient of light over land (docs/design.md default).
     static constexpr double kDefaultRefraction = 0.13;
 
     /// Throws UsageError when k ≥ 1 (ducting), k is not finite, k < −1 or the radius ≤ 0.

@@ -48,7 +48,7 @@ struct HorizonProfile {
     double highest_angle_deg, highest_azimuth_deg, highest_distance_m;
     double mean_angle_deg;   ///< sector-weighted mean of γ_i
     double sky_view_factor;  ///< [0, 1]
-    double dip_deg;          ///< largest depression, max(−γ_i) (DESIGN.md's dip)
+    double dip_deg;          ///< largest depression, max(−γ_i) (docs/design.md's dip)
     std::vector<HorizonSector> open_sectors;  ///< horizon below the local horizontal
     // The sea horizon for the eye's height (0 when the eye is at or below the datum or the Earth
     // is flat).

@@ -1,6 +1,6 @@
 #pragma once
 // HorizonScan: the horizon of every cell of a DEM in N directions, over a curved, refracting
-// Earth (DESIGN.md "horizon").
+// Earth (docs/design.md "horizon").
 //
 // Notation
 //   O         the eye's cell; z_e = DEM(O) + observer height, metres

@@ -1,5 +1,5 @@
 #pragma once
-// The CSV of sites, stations and candidates (DESIGN.md): a header row with columns
+// The CSV of sites, stations and candidates (docs/design.md): a header row with columns
 // name,x,y and an optional height (metres above ground; suffixes m, ft, us-ft accepted),
 // comma-separated, fields may be quoted ("a, b" and "" inside quotes), UTF-8.
 #include <optional>

@@ -1,6 +1,7 @@
 #pragma once
 // Intervisibility of a network of stations: every ordered pair judged by the sightline rule of
-// DESIGN.md (SightlineRule), from the eye of one station to the antenna or target of the other.
+// docs/design.md (SightlineRule), from the eye of one station to the antenna or target of the
+// other.
 //
 // Notation
 //   i, j        stations (index in the input order); i → j is "j seen from i"

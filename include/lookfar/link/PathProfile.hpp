@@ -85,7 +85,7 @@ struct PathProfileResult {
     /// Smallest clearance / F1 between the ends and where (NaN without a frequency).
     double min_fresnel_fraction = std::numeric_limits<double>::quiet_NaN();
     double min_fresnel_at_m = std::numeric_limits<double>::quiet_NaN();
-    bool fresnel_60_clear = false;  ///< min_fresnel_fraction ≥ 0.6 (REFERENCES.md row 7)
+    bool fresnel_60_clear = false;  ///< min_fresnel_fraction ≥ 0.6 (docs/references.md row 7)
 };
 
 /// Terrain height at a continuous cell coordinate: bilinear between the four surrounding cell

@@ -1,6 +1,6 @@
 #pragma once
 // The parts of every summary and every raster's metadata that all commands share
-// (DESIGN.md "Summary JSON": tool, version, command, dem, parameters, elapsed_s).
+// (docs/design.md "Summary JSON": tool, version, command, dem, parameters, elapsed_s).
 #include <map>
 #include <string>
 

@@ -1,5 +1,5 @@
 #pragma once
-// The sightline rule of DESIGN.md: the reference definition of "visible".
+// The sightline rule of docs/design.md: the reference definition of "visible".
 //
 // Notation
 //   O, C        observer and target cells; (c0, r0), (c1, r1) their cell coordinates

@@ -19,7 +19,7 @@ namespace lookfar {
 
 enum class ViewshedMethod { Reference, Fast };
 
-/// Values of the visibility grid (DESIGN.md).
+/// Values of the visibility grid (docs/design.md).
 inline constexpr std::uint8_t kHidden = 0;
 inline constexpr std::uint8_t kVisible = 1;
 inline constexpr std::uint8_t kNoVisibility = 255;  ///< outside reach, or DEM no-data
