@@ -47,17 +47,19 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
                         "farthest distance considered, metres (default unlimited)")
             ->group("Geometry");
         app->add_option("--refraction", o.refraction,
-                        "refraction coefficient k; 0.13 light over land, 0.25 radio (4/3 Earth); "
-                        "k < 1")
+                        "refraction coefficient k, -1 <= k < 1; 0.13 light over land, 0.25 radio "
+                        "(4/3 Earth)")
             ->capture_default_str()
+            ->check(refractionCheck())
             ->group("Geometry");
         app->add_option("--earth-model", o.earth_model,
                         "ellipsoid (radius along each sightline, from the CRS), sphere, or flat")
             ->capture_default_str()
-            ->check(CLI::IsMember({"ellipsoid", "sphere", "flat"}))
+            ->check(oneOfCheck({"ellipsoid", "sphere", "flat"}))
             ->group("Geometry");
-        app->add_option("--earth-radius", o.earth_radius, "radius for --earth-model sphere, metres")
-            ->capture_default_str()
+        app->add_option("--earth-radius", o.earth_radius,
+                        "radius of --earth-model sphere (only with it), metres, 1 km to "
+                        "100 000 km (default 6371008.8, the mean Earth radius)")
             ->group("Geometry");
     }
     app->add_option("--z-unit", o.z_unit,
@@ -65,20 +67,20 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
         ->group("Input");
     app->add_option("--band", o.band, "band of the DEM to read")
         ->capture_default_str()
-        ->check(CLI::PositiveNumber)
+        ->check(wholeNumberCheck(1, 65535))
         ->group("Input");
     if (which & kMethodOption) {
         app->add_option("--method", o.method,
                         "engine: fast (default), or reference (the sightline rule cell by cell: "
                         "same result, slow)")
             ->capture_default_str()
-            ->check(CLI::IsMember({"fast", "reference"}))
+            ->check(oneOfCheck({"fast", "reference"}))
             ->group("Engine");
     }
     app->add_option("--threads", o.threads,
-                    "worker threads, for the engines and for compressing GeoTIFFs (default: all "
-                    "cores)")
-        ->check(CLI::NonNegativeNumber)
+                    "worker threads, for the engines and for compressing GeoTIFFs, 1 to 1024 "
+                    "(default or 0: all cores)")
+        ->check(wholeNumberCheck(0, kMaxThreads, "(0: every core)"))
         ->group("Engine");
     app->add_option("--summary", o.summary, "also write the summary as JSON to this file")
         ->type_name("FILE")
@@ -93,6 +95,68 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
                         "tiled, DEFLATE, predictor, compressed on every processor)")
             ->group("Output");
     }
+}
+
+CLI::Validator wholeNumberCheck(long long lo, long long hi, const std::string& note) {
+    return CLI::Validator(
+        [lo, hi, note](const std::string& text) -> std::string {
+            const auto v = parseWholeNumber(trim(text));
+            if (v && *v >= lo && *v <= hi)
+                return "";
+            return "'" + echoText(text) + "' is not a whole number from " + std::to_string(lo) +
+                   " to " + std::to_string(hi) + (note.empty() ? "" : " " + note);
+        },
+        "");
+}
+
+CLI::Validator decimalCheck(double lo, double hi, const std::string& unit) {
+    return CLI::Validator(
+        [lo, hi, unit](const std::string& text) -> std::string {
+            const auto v = parseDecimal(trim(text));
+            if (v && *v >= lo && *v <= hi)
+                return "";
+            return "'" + echoText(text) + "' is not a number from " + printfNumber("%g", lo) +
+                   " to " + printfNumber("%g", hi) + (unit.empty() ? "" : " " + unit);
+        },
+        "");
+}
+
+CLI::Validator refractionCheck() {
+    return CLI::Validator(
+        [](const std::string& text) -> std::string {
+            const auto k = parseDecimal(trim(text));
+            if (!k) {
+                return "'" + echoText(text) +
+                       "' is not a decimal number; k is from -1 to below 1, e.g. 0.13 (light over "
+                       "land) or 0.25 (radio, a 4/3 Earth)";
+            }
+            if (*k >= -1.0 && *k < 1.0)
+                return "";
+            std::string message = echoText(text) + " is outside -1 <= k < 1";
+            if (*k > 1.0 && *k <= 4.0) {
+                message += "; if it is the K-factor (effective over true Earth radius), k = 1 - 1/K "
+                           "= " +
+                           printfNumber("%.4g", 1.0 - 1.0 / *k) + " (a 4/3 Earth is k = 0.25)";
+            } else if (*k >= 1.0) {
+                message += " (k >= 1 bends sightlines as much as the Earth curves: ducting)";
+            }
+            return message;
+        },
+        "");
+}
+
+CLI::Validator oneOfCheck(const std::vector<std::string>& names) {
+    return CLI::Validator(
+        [names](const std::string& text) -> std::string {
+            std::string list;
+            for (std::size_t i = 0; i < names.size(); ++i) {
+                if (text == names[i])
+                    return "";
+                list += (i == 0 ? "" : i + 1 == names.size() ? " or " : ", ") + names[i];
+            }
+            return "'" + echoText(text) + "' is not " + list;
+        },
+        "");
 }
 
 void checkTextOptionsAreUtf8(const CLI::App& app) {
@@ -207,6 +271,23 @@ double parseReachOption(const std::string& text) {
     return r;
 }
 
+double parseEarthRadiusOption(const std::string& text, const std::string& earth_model) {
+    if (text.empty())
+        return EarthModel::kMeanRadiusM;
+    if (earth_model != "sphere") {
+        throw UsageError("--earth-radius needs --earth-model sphere: " +
+                         std::string(earth_model == "flat"
+                                         ? "a flat Earth has no radius"
+                                         : "the ellipsoid's radii come from the DEM's CRS"));
+    }
+    const double r = parseLengthMetres(text, "--earth-radius");
+    if (!(r >= 1e3 && r <= 1e8)) {
+        throw UsageError("--earth-radius: " + echoText(text) +
+                         " is outside 1 km to 100 000 km");
+    }
+    return r;
+}
+
 RunContext prepareRun(const std::string& command, const CommonOptions& options,
                       const std::vector<std::string>& outputs,
                       const std::vector<std::string>& extra_inputs) {
@@ -218,11 +299,8 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
     ctx.observer_height_m = parseHeightOption(options.observer_height, "--observer-height");
     ctx.target_height_m = parseHeightOption(options.target_height, "--target-height");
     ctx.reach_m = parseReachOption(options.reach);
-    double radius = parseLengthMetres(options.earth_radius, "--earth-radius");
-    if (!(radius > 1000))
-        throw UsageError("--earth-radius: " + options.earth_radius +
-                         " is not a plausible radius (metres)");
     EarthShape shape = parseEarthShape(options.earth_model);
+    const double radius = parseEarthRadiusOption(options.earth_radius, options.earth_model);
     EarthModel probe_earth(shape, Ellipsoid::wgs84(), radius, options.refraction);  // validates k
     std::optional<LinearUnit> z_unit;
     if (!options.z_unit.empty()) {

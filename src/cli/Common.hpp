@@ -31,6 +31,9 @@ struct Command {
     std::function<void()> run;
 };
 
+/// Most worker threads --threads accepts.
+inline constexpr int kMaxThreads = 1024;
+
 /// Which of the common options a subcommand takes.
 enum CommonSet : unsigned {
     kGeometryOptions = 1u << 0,  ///< --refraction --earth-model --earth-radius --reach
@@ -48,7 +51,7 @@ struct CommonOptions {
     std::string reach;
     double refraction = EarthModel::kDefaultRefraction;
     std::string earth_model = "ellipsoid";
-    std::string earth_radius = "6371008.8";
+    std::string earth_radius;  ///< empty: EarthModel::kMeanRadiusM; only with sphere
     std::string z_unit;
     int band = 1;
     int threads = 0;
@@ -62,6 +65,18 @@ struct CommonOptions {
 
 /// Adds the DEM positional argument and the common options to `app`.
 void addCommonOptions(CLI::App* app, CommonOptions& options, unsigned which = kAllCommon);
+
+/// Checks for numeric options, run by CLI11 on the text before conversion, so that a bad value
+/// is refused in lookfar's words ("--threads: '-1' is not a whole number from 0 to 1024").
+/// `note` is appended to the message, e.g. "(0: every core)".
+CLI::Validator wholeNumberCheck(long long lo, long long hi, const std::string& note = "");
+/// A finite decimal number from `lo` to `hi` (both included); `unit` follows the range.
+CLI::Validator decimalCheck(double lo, double hi, const std::string& unit);
+/// The refraction coefficient: a decimal number with −1 ≤ k < 1, with a hint when a K-factor
+/// (effective radius ÷ true radius, e.g. 1.333) is typed where k is meant.
+CLI::Validator refractionCheck();
+/// One of `names` (the text exactly).
+CLI::Validator oneOfCheck(const std::vector<std::string>& names);
 
 /// Refuses (UsageError naming the option) a value of `app` that is not UTF-8. Options whose type
 /// name is FILE are paths, taken as the bytes the system gives: they are not checked.
@@ -115,6 +130,9 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
 double parseHeightOption(const std::string& text, const std::string& what);
 /// Parses --reach: empty = unlimited, else a positive length.
 double parseReachOption(const std::string& text);
+/// Parses --earth-radius (1 km to 100 000 km); empty = the mean Earth radius. Refused unless
+/// `earth_model` is "sphere": the other models take no radius.
+double parseEarthRadiusOption(const std::string& text, const std::string& earth_model);
 
 /// Places a point given in --crs coordinates on the DEM: the cell that contains it.
 /// Throws InputError when outside the DEM or on no-data (naming the point and the DEM).

@@ -543,6 +543,7 @@ Command addHorizonCommand(CLI::App& root) {
         app->add_option("--directions", state->directions,
                         "N, the number of azimuths i*360/N clockwise from grid north, 1 to 3600")
             ->capture_default_str()
+            ->check(wholeNumberCheck(1, kMaxHorizonDirections))
             ->group("Every cell");
     app->add_option("--distance", state->distance,
                     "Float32 raster of N bands: ground distance to the horizon, metres")
@@ -564,6 +565,7 @@ Command addHorizonCommand(CLI::App& root) {
     state->step_opt =
         app->add_option("--step", state->step, "azimuth step of --at, degrees, 0.05 to 90")
             ->capture_default_str()
+            ->check(decimalCheck(0.05, 90, "degrees"))
             ->group("One spot");
     app->add_option("--csv", state->csv,
                     "CSV of the horizon of --at: azimuth_deg,angle_deg,distance_m,x,y,"

@@ -10,6 +10,7 @@
 
 #include "Commands.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/SitesCsv.hpp"
@@ -24,6 +25,7 @@ struct SelectState {
     CommonOptions options;
     std::string candidates;
     int count = 0;
+    CLI::Option* count_opt = nullptr;  ///< given or not (0 is refused, not "no count")
     std::string coverage;  ///< empty = no coverage goal
     std::string output;
     std::string csv;
@@ -84,7 +86,7 @@ std::string stopReason(CoverageStop s) {
 
 void runSelect(const SelectState& s) {
     const CommonOptions& o = s.options;
-    const bool has_count = s.count != 0;
+    const bool has_count = s.count_opt->count() > 0;
     const bool has_coverage = !trim(s.coverage).empty();
     if (!has_count && !has_coverage) {
         throw UsageError("select needs --count K, --coverage P, or both");
@@ -264,8 +266,21 @@ Command addSelectCommand(CLI::App& root) {
         ->type_name("FILE")
         ->required()
         ->group("Choice");
-    app->add_option("--count", state->count, "choose at most K sites (1 ≤ K ≤ candidates)")
-        ->group("Choice");
+    state->count_opt =
+        app->add_option("--count", state->count, "choose at most K sites (1 ≤ K ≤ candidates)")
+            ->check(CLI::Validator(
+                [](const std::string& text) -> std::string {
+                    const auto k = parseWholeNumber(trim(text));
+                    if (!k)
+                        return "'" + echoText(text) + "' is not a whole number of sites";
+                    if (*k < 1)
+                        return "--count must be at least 1 (" + echoText(text) + " given)";
+                    if (*k > 65534)
+                        return "--count must be at most 65534, the most a count raster holds";
+                    return "";
+                },
+                ""))
+            ->group("Choice");
     app->add_option("--coverage", state->coverage,
                     "choose as few sites as see P percent of the evaluated ground (or weight), "
                     "0 < P ≤ 100")

@@ -17,6 +17,64 @@ std::string trim(const std::string& text) {
     return text.substr(begin, end - begin + 1);
 }
 
+std::size_t decimalPrefixLength(const std::string& text) {
+    const auto digit = [&](std::size_t k) {
+        return k < text.size() && text[k] >= '0' && text[k] <= '9';
+    };
+    std::size_t i = 0;
+    if (i < text.size() && (text[i] == '+' || text[i] == '-'))
+        ++i;
+    std::size_t digits = 0;
+    while (digit(i)) {
+        ++i;
+        ++digits;
+    }
+    if (i < text.size() && text[i] == '.') {
+        ++i;
+        while (digit(i)) {
+            ++i;
+            ++digits;
+        }
+    }
+    if (digits == 0)
+        return 0;
+    // An exponent counts only when digits follow it ("10e" is 10 followed by "e").
+    if (i < text.size() && (text[i] == 'e' || text[i] == 'E')) {
+        std::size_t j = i + 1;
+        if (j < text.size() && (text[j] == '+' || text[j] == '-'))
+            ++j;
+        if (digit(j)) {
+            while (digit(j))
+                ++j;
+            i = j;
+        }
+    }
+    return i;
+}
+
+std::optional<double> parseDecimal(const std::string& text) {
+    if (text.empty() || decimalPrefixLength(text) != text.size())
+        return std::nullopt;
+    // The grammar above is a subset of strtod's in the C locale, which lookfar never changes.
+    const double v = std::strtod(text.c_str(), nullptr);
+    if (!std::isfinite(v))
+        return std::nullopt;
+    return v;
+}
+
+std::optional<long long> parseWholeNumber(const std::string& text) {
+    std::size_t i = (!text.empty() && (text[0] == '+' || text[0] == '-')) ? 1 : 0;
+    if (i == text.size() || text.size() - i > 18)
+        return std::nullopt;
+    long long v = 0;
+    for (std::size_t k = i; k < text.size(); ++k) {
+        if (text[k] < '0' || text[k] > '9')
+            return std::nullopt;
+        v = v * 10 + (text[k] - '0');
+    }
+    return text[0] == '-' ? -v : v;
+}
+
 std::optional<LinearUnit> parseLinearUnit(const std::string& text) {
     std::string t = trim(text);
     std::transform(t.begin(), t.end(), t.begin(), [](unsigned char c) { return std::tolower(c); });

@@ -90,3 +90,134 @@ TEST(InputValidationCliTest, PathsThatAreNotUtf8AreEscapedInTheJsonSummary) {
     EXPECT_TRUE(nlohmann::json::accept(readFile(dir.file("s\xE9.json"))));
     EXPECT_TRUE(fileExists(dir.file("v\xE9.tif")));
 }
+
+// ----- items 4, 5, 8: options refused in lookfar's words ---------------------------------------
+
+namespace {
+
+/// Words of CLI11's own messages that must never reach a user.
+void expectNoLibraryWords(const std::string& err) {
+    for (const char* words : {"Could not convert", "not in range", "The following argument",
+                              "At Most", "A subcommand is required", "excludes", "not in {"}) {
+        EXPECT_EQ(err.find(words), std::string::npos) << err;
+    }
+}
+
+std::vector<std::string> linkArgs(std::vector<std::string> extra) {
+    std::vector<std::string> args = {"link", kCone, "--from", "431500,5588500", "--to",
+                                     "432500,5588500", "--json", "--quiet"};
+    args.insert(args.end(), extra.begin(), extra.end());
+    return args;
+}
+
+}  // namespace
+
+TEST(InputValidationCliTest, SelectCountZeroIsRefusedNotTakenAsNoCount) {
+    ScratchDir out;
+    expectRefused({"select", kDemo, "--candidates", testRaster("demo_sites.csv"), "--count", "0",
+                   "--coverage", "50", "-o", out.file("c.tif"), "--quiet"},
+                  2, {"--count must be at least 1"}, out);
+}
+
+TEST(InputValidationCliTest, EarthRadiusWithoutTheSphereModelIsAUsageError) {
+    ScratchDir out;
+    expectRefused(linkArgs({"--earth-radius", "1000km"}), 2,
+                  {"--earth-radius needs --earth-model sphere"}, out);
+    expectRefused(linkArgs({"--earth-model", "flat", "--earth-radius", "1000km"}), 2,
+                  {"--earth-radius needs --earth-model sphere"}, out);
+    // With the sphere it is used: the effective radius is R/(1 - k) (DESIGN.md, refraction).
+    const CliResult r = runLookfar(
+        linkArgs({"--earth-model", "sphere", "--earth-radius", "1000km", "--refraction", "0.2"}));
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NEAR(nlohmann::json::parse(r.out)["effective_radius_m"].get<double>(), 1e6 / 0.8,
+                1e-6);
+}
+
+TEST(InputValidationCliTest, RefractionThatIsNotADecimalNamesTheOptionAndTheRange) {
+    ScratchDir out;
+    const CliResult r = runLookfar(linkArgs({"--refraction", "4/3"}));
+    EXPECT_EQ(r.exit_code, 2);
+    EXPECT_NE(firstLine(r.err).find("--refraction: '4/3' is not a decimal number"),
+              std::string::npos)
+        << r.err;
+    EXPECT_NE(firstLine(r.err).find("from -1 to below 1"), std::string::npos) << r.err;
+    expectNoLibraryWords(r.err);
+}
+
+// A K-factor K (effective radius over true radius) is 1/(1 - k), so K = 4/3 is k = 0.25 and
+// K = 1.333 is k = 0.2498 (DESIGN.md: effective radius R/(1 - k); the 4/3 Earth of radio
+// planning is ITU-R's effective Earth-radius factor for the standard atmosphere, from memory).
+TEST(InputValidationCliTest, RefractionTypedAsAKFactorGetsTheHintThatFourThirdsIsQuarter) {
+    const CliResult r = runLookfar(linkArgs({"--refraction", "1.333"}));
+    EXPECT_EQ(r.exit_code, 2);
+    EXPECT_NE(firstLine(r.err).find("K-factor"), std::string::npos) << r.err;
+    EXPECT_NE(firstLine(r.err).find("0.2498"), std::string::npos) << r.err;
+    EXPECT_NE(firstLine(r.err).find("k = 0.25"), std::string::npos) << r.err;
+}
+
+TEST(InputValidationCliTest, NumbersOutOfRangeNameTheOptionAndTheRangeInFewWords) {
+    ScratchDir out;
+    const std::vector<std::vector<std::string>> cases = {
+        {"--threads", "-1", "--threads: '-1' is not a whole number from 0 to 1024"},
+        {"--threads", "1e3", "--threads: '1e3' is not a whole number from 0 to 1024"},
+        {"--band", "0", "--band: '0' is not a whole number from 1"},
+        {"--earth-model", "round", "--earth-model: 'round' is not ellipsoid, sphere or flat"},
+    };
+    for (const auto& c : cases) {
+        const CliResult r = runLookfar(linkArgs({c[0], c[1]}));
+        EXPECT_EQ(r.exit_code, 2) << c[0];
+        EXPECT_NE(firstLine(r.err).find(c[2]), std::string::npos) << r.err;
+        EXPECT_LT(firstLine(r.err).size(), 160u) << r.err;
+        expectNoLibraryWords(r.err);
+    }
+    const CliResult d = runLookfar({"horizon", kCone, "-o", out.file("h.tif"), "--directions",
+                                    "1.5", "--quiet"});
+    EXPECT_EQ(d.exit_code, 2);
+    EXPECT_NE(firstLine(d.err).find("--directions: '1.5' is not a whole number from 1 to 3600"),
+              std::string::npos)
+        << d.err;
+    EXPECT_TRUE(out.entries().empty());
+}
+
+TEST(InputValidationCliTest, UnexpectedArgumentsAreNamedWithTheCommand) {
+    const CliResult r = runLookfar(linkArgs({"3", "--target-height"}));
+    EXPECT_EQ(r.exit_code, 2);
+    EXPECT_NE(firstLine(r.err).find("link does not take '3 --target-height'"), std::string::npos)
+        << r.err;
+    EXPECT_NE(r.err.find("lookfar help link"), std::string::npos) << r.err;
+    expectNoLibraryWords(r.err);
+    const CliResult twice = runLookfar(linkArgs({"--from", "431000,5588500"}));
+    EXPECT_EQ(twice.exit_code, 2);
+    EXPECT_NE(firstLine(twice.err).find("--from is given more than once"), std::string::npos)
+        << twice.err;
+}
+
+TEST(InputValidationCliTest, HelpCommandPrintsTheHelpOfLookfarOrOfACommand) {
+    const CliResult root = runLookfar({"help"});
+    EXPECT_EQ(root.exit_code, 0) << root.err;
+    EXPECT_EQ(root.out, runLookfar({"--help"}).out);
+    EXPECT_NE(root.out.find("viewshed"), std::string::npos);
+    const CliResult link = runLookfar({"help", "link"});
+    EXPECT_EQ(link.exit_code, 0) << link.err;
+    EXPECT_EQ(link.out, runLookfar({"link", "--help"}).out);
+    EXPECT_NE(link.out.find("--frequency-mhz"), std::string::npos);
+    const CliResult unknown = runLookfar({"help", "survey"});
+    EXPECT_EQ(unknown.exit_code, 2);
+    EXPECT_NE(firstLine(unknown.err).find("'survey' is not a command of lookfar"),
+              std::string::npos)
+        << unknown.err;
+}
+
+TEST(InputValidationCliTest, MissingOrUnknownCommandIsOurSentence) {
+    const CliResult none = runLookfar({});
+    EXPECT_EQ(none.exit_code, 2);
+    EXPECT_NE(firstLine(none.err).find("no command given; the commands are info, viewshed"),
+              std::string::npos)
+        << none.err;
+    expectNoLibraryWords(none.err);
+    const CliResult unknown = runLookfar({"survey", kCone});
+    EXPECT_EQ(unknown.exit_code, 2);
+    EXPECT_NE(firstLine(unknown.err).find("'survey' is not a command of lookfar"),
+              std::string::npos)
+        << unknown.err;
+}

@@ -1,5 +1,6 @@
 #pragma once
 // Length units and the parsing of lengths written by users ("100", "100m", "30ft", "12us-ft").
+#include <cstddef>
 #include <optional>
 #include <string>
 
@@ -24,6 +25,19 @@ std::optional<LinearUnit> parseLinearUnit(const std::string& text);
 /// Parses a length with an optional unit suffix (m, km, ft, us-ft) into metres.
 /// Throws UsageError naming `what` (e.g. "--observer-height") when malformed or non-finite.
 double parseLengthMetres(const std::string& text, const std::string& what);
+
+/// Parses a finite decimal number, the whole of `text`: an optional sign, digits with an optional
+/// decimal point, an optional exponent (e or E, optionally signed). No white space, hex, inf, nan
+/// or other characters; nullopt also when the value overflows to infinity.
+std::optional<double> parseDecimal(const std::string& text);
+
+/// Parses a whole decimal number (optional sign, digits), the whole of `text`; nullopt when
+/// malformed or beyond ±10^18.
+std::optional<long long> parseWholeNumber(const std::string& text);
+
+/// Length of the longest prefix of `text` that has the form of a decimal number (see
+/// parseDecimal); 0 when there is none.
+std::size_t decimalPrefixLength(const std::string& text);
 
 /// Trims ASCII white space at both ends.
 std::string trim(const std::string& text);
