@@ -14,6 +14,8 @@
 
 #include "../support/ChildRun.hpp"
 #include "../support/CliRunner.hpp"
+#include "../support/CsvFiles.hpp"
+#include "../support/RasterFiles.hpp"
 
 using namespace lookfar::testing;
 
@@ -32,70 +34,6 @@ nlohmann::json runJson(const std::vector<std::string>& args) {
     if (r.exit_code != 0)
         return nlohmann::json::object();
     return nlohmann::json::parse(r.out);
-}
-
-struct Raster {
-    int width = 0, height = 0, bands = 0;
-    std::vector<std::vector<float>> values;  ///< per band
-    std::vector<std::string> descriptions;
-    std::vector<std::string> units;
-    double nodata = 0;
-    float at(int band, int c, int r) const {
-        return values[band][static_cast<std::size_t>(r) * width + c];
-    }
-};
-
-Raster readRaster(const std::string& path) {
-    GDALAllRegister();
-    Raster out;
-    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
-    EXPECT_NE(ds, nullptr) << path;
-    if (!ds)
-        return out;
-    out.width = GDALGetRasterXSize(ds);
-    out.height = GDALGetRasterYSize(ds);
-    out.bands = GDALGetRasterCount(ds);
-    for (int b = 1; b <= out.bands; ++b) {
-        GDALRasterBandH band = GDALGetRasterBand(ds, b);
-        std::vector<float> v(static_cast<std::size_t>(out.width) * out.height);
-        EXPECT_EQ(GDALRasterIO(band, GF_Read, 0, 0, out.width, out.height, v.data(), out.width,
-                               out.height, GDT_Float32, 0, 0),
-                  CE_None);
-        out.values.push_back(std::move(v));
-        out.descriptions.push_back(GDALGetDescription(band));
-        out.units.push_back(GDALGetRasterUnitType(band));
-        out.nodata = GDALGetRasterNoDataValue(band, nullptr);
-    }
-    GDALClose(ds);
-    return out;
-}
-
-std::string metadataItem(const std::string& path, const std::string& key) {
-    GDALAllRegister();
-    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
-    if (!ds)
-        return "";
-    const char* v = GDALGetMetadataItem(ds, key.c_str(), nullptr);
-    std::string out = v ? v : "";
-    GDALClose(ds);
-    return out;
-}
-
-std::vector<std::vector<std::string>> readCsv(const std::string& path) {
-    std::vector<std::vector<std::string>> rows;
-    std::ifstream in(path);
-    std::string line;
-    while (std::getline(in, line)) {
-        std::vector<std::string> cells;
-        std::stringstream ss(line);
-        std::string cell;
-        while (std::getline(ss, cell, ','))
-            cells.push_back(cell);
-        if (!line.empty() && line.back() == ',')
-            cells.push_back("");
-        rows.push_back(cells);
-    }
-    return rows;
 }
 
 }  // namespace
@@ -201,7 +139,7 @@ TEST(HorizonCliTest, RastersHaveOneBandPerDirectionWithItsAzimuth) {
         for (int c = 0; c < 500; c += 41) {
             EXPECT_GE(s.at(0, c, r), 0.0f);
             EXPECT_LE(s.at(0, c, r), 1.0f);
-            float lowest = 90;
+            double lowest = 90;
             for (int b = 0; b < 8; ++b) {
                 if (a.at(b, c, r) != -9999.0f)
                     lowest = std::fmin(lowest, a.at(b, c, r));

@@ -13,6 +13,7 @@
 #include <sstream>
 
 #include "../support/CliRunner.hpp"
+#include "../support/CsvFiles.hpp"
 
 using namespace lookfar::testing;
 
@@ -40,42 +41,6 @@ double geodesicM(LonLat a, LonLat b) {
 }
 
 /// Splits a CSV line with RFC 4180 quotes.
-std::vector<std::string> fields(const std::string& line) {
-    std::vector<std::string> out;
-    std::string f;
-    bool q = false;
-    for (std::size_t i = 0; i < line.size(); ++i) {
-        char c = line[i];
-        if (q) {
-            if (c == '"' && i + 1 < line.size() && line[i + 1] == '"') {
-                f += '"';
-                ++i;
-            } else if (c == '"') {
-                q = false;
-            } else {
-                f += c;
-            }
-        } else if (c == '"') {
-            q = true;
-        } else if (c == ',') {
-            out.push_back(f);
-            f.clear();
-        } else {
-            f += c;
-        }
-    }
-    out.push_back(f);
-    return out;
-}
-std::vector<std::vector<std::string>> readCsv(const std::string& path) {
-    std::vector<std::vector<std::string>> rows;
-    std::istringstream in(readFile(path));
-    std::string line;
-    while (std::getline(in, line))
-        rows.push_back(fields(line));
-    return rows;
-}
-
 // The demo stations (test_rasters/demo_sites.csv), EPSG:32630.
 const std::map<std::string, std::pair<double, double>> kDemo = {
     {"Skerrow Head", {422937.5, 5598337.5}},   {"Saltinghow Point", {422837.5, 5594512.5}},

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "../support/CliRunner.hpp"
+#include "../support/CsvFiles.hpp"
 
 using namespace lookfar::testing;
 
@@ -45,23 +46,6 @@ Geo wgs84Inverse(LonLat a, LonLat b) {
 double wrap(double az) {
     az = std::fmod(az, 360.0);
     return az < 0 ? az + 360 : az;
-}
-
-std::vector<std::vector<std::string>> readCsv(const std::string& path) {
-    std::vector<std::vector<std::string>> rows;
-    std::istringstream in(readFile(path));
-    std::string line;
-    while (std::getline(in, line)) {
-        std::vector<std::string> f;
-        std::stringstream ss(line);
-        std::string cell;
-        while (std::getline(ss, cell, ','))
-            f.push_back(cell);
-        if (!line.empty() && line.back() == ',')
-            f.push_back("");
-        rows.push_back(f);
-    }
-    return rows;
 }
 
 }  // namespace

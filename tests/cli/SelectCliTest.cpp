@@ -11,31 +11,11 @@
 #include <sstream>
 
 #include "../support/CliRunner.hpp"
+#include "../support/CsvFiles.hpp"
 
 using namespace lookfar::testing;
 
 namespace {
-
-std::vector<std::vector<std::string>> readCsvSimple(const std::string& path) {
-    // The demo's quoted name holds a comma: split on commas outside quotes.
-    std::vector<std::vector<std::string>> rows;
-    std::istringstream in(readFile(path));
-    std::string line;
-    while (std::getline(in, line)) {
-        std::vector<std::string> f(1);
-        bool q = false;
-        for (char c : line) {
-            if (c == '"')
-                q = !q;
-            else if (c == ',' && !q)
-                f.emplace_back();
-            else
-                f.back() += c;
-        }
-        rows.push_back(f);
-    }
-    return rows;
-}
 
 /// Writes a Float32 GeoTIFF of `w` × `h` cells with the given geotransform in EPSG:32630.
 void writeRaster(const std::string& path, int w, int h, const double gt[6],
@@ -69,7 +49,7 @@ TEST(SelectCliTest, RanksTheDemoSitesAndWritesTheCountRaster) {
     ASSERT_EQ(r.exit_code, 0) << r.err;
     EXPECT_EQ(firstLine(readFile(dir.file("ranked.csv"))),
               "rank,name,x,y,marginal_area_m2,cumulative_area_m2,cumulative_percent");
-    const auto rows = readCsvSimple(dir.file("ranked.csv"));
+    const auto rows = readCsv(dir.file("ranked.csv"));
     ASSERT_EQ(rows.size(), 4u);
     double cumulative = 0, last_marginal = 1e300, last_percent = 0;
     for (std::size_t i = 1; i < rows.size(); ++i) {

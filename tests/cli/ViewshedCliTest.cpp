@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "../support/CliRunner.hpp"
+#include "../support/RasterFiles.hpp"
 
 using namespace lookfar::testing;
 
@@ -43,43 +44,6 @@ double seaFarthest(const ScratchDir& dir, double h, double target, double k) {
                  "--observer-height", std::to_string(h), "--target-height", std::to_string(target),
                  "--refraction", std::to_string(k), "--earth-model", "sphere"});
     return j["observers"][0]["farthest_visible_m"].get<double>();
-}
-
-struct Band {
-    int width = 0, height = 0;
-    std::vector<double> values;
-    double nodata = 0;
-    double at(int c, int r) const { return values[static_cast<std::size_t>(r) * width + c]; }
-};
-
-Band readBand(const std::string& path) {
-    GDALAllRegister();
-    Band b;
-    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
-    EXPECT_NE(ds, nullptr) << path;
-    if (!ds)
-        return b;
-    GDALRasterBandH band = GDALGetRasterBand(ds, 1);
-    b.width = GDALGetRasterXSize(ds);
-    b.height = GDALGetRasterYSize(ds);
-    b.values.resize(static_cast<std::size_t>(b.width) * b.height);
-    EXPECT_EQ(GDALRasterIO(band, GF_Read, 0, 0, b.width, b.height, b.values.data(), b.width,
-                           b.height, GDT_Float64, 0, 0),
-              CE_None);
-    b.nodata = GDALGetRasterNoDataValue(band, nullptr);
-    GDALClose(ds);
-    return b;
-}
-
-std::string metadataItem(const std::string& path, const std::string& key) {
-    GDALAllRegister();
-    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
-    if (!ds)
-        return "";
-    const char* v = GDALGetMetadataItem(ds, key.c_str(), nullptr);
-    std::string out = v ? v : "";
-    GDALClose(ds);
-    return out;
 }
 
 }  // namespace
@@ -147,30 +111,30 @@ TEST(ViewshedCliTest, WallCastsShadowOfKnownLength) {
     // Observer cell (40, 100): centre (430405, 5588995); the wall is column 100 (x = 431005).
     auto j = runJson({"viewshed", testRaster("wall.tif"), "--observer", "430405,5588995", "-o", out,
                       "--observer-height", "77", "--earth-model", "flat"});
-    Band v = readBand(out);
+    const Raster v = readRaster(out);
     ASSERT_EQ(v.width, 401);
     const double shadow_m = 600.0 * 50.0 / (77.0 - 50.0);
     const int first_visible_col = 100 + static_cast<int>(std::ceil(shadow_m / 10.0));  // 212
     for (int r = 0; r < v.height; ++r) {
         int first = -1;
         for (int c = 101; c < v.width; ++c) {
-            if (v.at(c, r) == 1) {
+            if (v.at(0, c, r) == 1) {
                 first = c;
                 break;
             }
         }
         EXPECT_NEAR(first, first_visible_col, 1) << "row " << r;
         for (int c = first; c >= 0 && c < v.width; ++c)
-            ASSERT_EQ(v.at(c, r), 1) << "beyond the shadow, row " << r << " col " << c;
+            ASSERT_EQ(v.at(0, c, r), 1) << "beyond the shadow, row " << r << " col " << c;
     }
     // Curvature and refraction only lengthen the strip.
     const std::string curved = dir.file("wall_curved.tif");
     runJson({"viewshed", testRaster("wall.tif"), "--observer", "430405,5588995", "-o", curved,
              "--observer-height", "77"});
-    Band vc = readBand(curved);
+    const Raster vc = readRaster(curved);
     int first = -1;
     for (int c = 101; c < vc.width && first < 0; ++c) {
-        if (vc.at(c, 100) == 1)
+        if (vc.at(0, c, 100) == 1)
             first = c;
     }
     EXPECT_GE(first, first_visible_col - 1);
@@ -212,7 +176,7 @@ TEST(ViewshedCliTest, GeographicDistancesAgreeWithPROJGeodesic) {
     auto j = runJson({"viewshed", usgsSample(), "--observer", "-84.2,36.6", "--crs", "EPSG:4326",
                       "-o", out, "--observer-height", "20"});
     const auto& o = j["observers"][0];
-    Band v = readBand(out);
+    const Raster v = readRaster(out);
     ASSERT_GT(v.width, 0);
     // Cell centres of the geographic grid: origin (−84.41375, 36.7329167), 1/1200°.
     const double west = -84.41375, north = 36.73291666666667, step = 1.0 / 1200.0;
@@ -223,7 +187,7 @@ TEST(ViewshedCliTest, GeographicDistancesAgreeWithPROJGeodesic) {
     double farthest_geodesic = 0;
     for (int r = 0; r < v.height; ++r) {
         for (int c = 0; c < v.width; ++c) {
-            if (v.at(c, r) != 1)
+            if (v.at(0, c, r) != 1)
                 continue;
             double s12, a1, a2;
             geod_inverse(&geod, lat0, lon0, north - (r + 0.5) * step, west + (c + 0.5) * step, &s12,
@@ -305,19 +269,20 @@ TEST(ViewshedCliTest, SummaryKeysRasterValuesAndMetadata) {
     EXPECT_NEAR(o["eye_m"].get<double>(), 259.7, 0.01);
     EXPECT_LE(o["farthest_visible_m"].get<double>(), 8000.0);
 
-    Band v = readBand(out), m = readBand(margin), a = readBand(angle);
+    const Raster v = readRaster(out), m = readRaster(margin), a = readRaster(angle);
     ASSERT_EQ(v.width, 500);
     std::int64_t visible = 0, evaluated = 0;
-    for (std::size_t i = 0; i < v.values.size(); ++i) {
-        const double x = v.values[i];
+    for (std::size_t i = 0; i < v.values[0].size(); ++i) {
+        const double x = v.values[0][i];
         ASSERT_TRUE(x == 0 || x == 1 || x == 255) << x;
         visible += x == 1;
         evaluated += x != 255;
         if (x != 255) {
-            ASSERT_EQ(x == 1, m.values[i] >= 0) << "margin ≥ 0 exactly where visible, cell " << i;
-            ASSERT_TRUE(std::isfinite(a.values[i]));
+            ASSERT_EQ(x == 1, m.values[0][i] >= 0)
+                << "margin ≥ 0 exactly where visible, cell " << i;
+            ASSERT_TRUE(std::isfinite(a.values[0][i]));
         } else {
-            ASSERT_TRUE(std::isnan(m.values[i]));
+            ASSERT_TRUE(std::isnan(m.values[0][i]));
         }
     }
     EXPECT_EQ(visible, o["visible_cells"].get<std::int64_t>());
@@ -336,12 +301,12 @@ TEST(ViewshedCliTest, SummaryKeysRasterValuesAndMetadata) {
 // The reference engine gives the same raster as the fast one (they are meant to be identical).
 TEST(ViewshedCliTest, ReferenceMethodGivesTheSameRaster) {
     ScratchDir dir;
-    std::vector<Band> bands;
+    std::vector<Raster> bands;
     for (const char* method : {"fast", "reference"}) {
         const std::string out = dir.file(std::string(method) + ".tif");
         runJson({"viewshed", testRaster("geographic_hills.tif"), "--observer", "11.1,47.02", "-o",
                  out, "--method", method, "--observer-height", "10", "--reach", "6000"});
-        bands.push_back(readBand(out));
+        bands.push_back(readRaster(out));
     }
     EXPECT_EQ(bands[0].values, bands[1].values);
 }
@@ -367,7 +332,7 @@ TEST(ViewshedCliTest, ObserverCoordinatesInAnyCrs) {
 // run in parallel when there are at least as many sites as threads).
 TEST(ViewshedCliTest, IdenticalRastersForAnyThreadCount) {
     ScratchDir dir;
-    std::vector<Band> single, multi;
+    std::vector<Raster> single, multi;
     for (const char* t : {"1", "2", "5"}) {
         const std::string a = dir.file(std::string("v") + t + ".tif");
         const std::string b = dir.file(std::string("c") + t + ".tif");
@@ -375,8 +340,8 @@ TEST(ViewshedCliTest, IdenticalRastersForAnyThreadCount) {
                  "--observer-height", "25", "-o", a, "--threads", t});
         runJson({"viewshed", testRaster("demo_coast.tif"), "--sites", testRaster("demo_sites.csv"),
                  "-o", b, "--threads", t});
-        single.push_back(readBand(a));
-        multi.push_back(readBand(b));
+        single.push_back(readRaster(a));
+        multi.push_back(readRaster(b));
     }
     for (std::size_t k = 1; k < single.size(); ++k) {
         EXPECT_EQ(single[k].values, single[0].values);

@@ -1,0 +1,69 @@
+#pragma once
+// Reading back the rasters lookfar writes, through GDAL (the library every GIS reads them
+// with): every band's values as doubles (exact for Byte, UInt16 and Float32), the band
+// descriptions and units, the no-data value, and dataset metadata.
+#include <gdal.h>
+#include <gtest/gtest.h>
+
+#include <cstddef>
+#include <string>
+#include <vector>
+
+namespace lookfar::testing {
+
+struct Raster {
+    int width = 0;
+    int height = 0;
+    int bands = 0;
+    std::vector<std::vector<double>> values;  ///< per band (0-based), row-major
+    std::vector<std::string> descriptions;    ///< per band
+    std::vector<std::string> units;           ///< per band
+    double nodata = 0;                        ///< of band 1
+    /// Value of cell (c, r) in band `band` (0-based).
+    double at(int band, int c, int r) const {
+        return values[band][static_cast<std::size_t>(r) * width + c];
+    }
+};
+
+/// Every band of the raster at `path`; a test failure (and an empty raster) when GDAL cannot
+/// open or read it.
+inline Raster readRaster(const std::string& path) {
+    GDALAllRegister();
+    Raster out;
+    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
+    EXPECT_NE(ds, nullptr) << path;
+    if (!ds)
+        return out;
+    out.width = GDALGetRasterXSize(ds);
+    out.height = GDALGetRasterYSize(ds);
+    out.bands = GDALGetRasterCount(ds);
+    for (int b = 1; b <= out.bands; ++b) {
+        GDALRasterBandH band = GDALGetRasterBand(ds, b);
+        std::vector<double> v(static_cast<std::size_t>(out.width) * out.height);
+        EXPECT_EQ(GDALRasterIO(band, GF_Read, 0, 0, out.width, out.height, v.data(), out.width,
+                               out.height, GDT_Float64, 0, 0),
+                  CE_None)
+            << path << " band " << b;
+        out.values.push_back(std::move(v));
+        out.descriptions.push_back(GDALGetDescription(band));
+        out.units.push_back(GDALGetRasterUnitType(band));
+        if (b == 1)
+            out.nodata = GDALGetRasterNoDataValue(band, nullptr);
+    }
+    GDALClose(ds);
+    return out;
+}
+
+/// A dataset metadata item of the raster at `path` ("" when absent or unreadable).
+inline std::string metadataItem(const std::string& path, const std::string& key) {
+    GDALAllRegister();
+    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
+    if (!ds)
+        return "";
+    const char* v = GDALGetMetadataItem(ds, key.c_str(), nullptr);
+    std::string out = v ? v : "";
+    GDALClose(ds);
+    return out;
+}
+
+}  // namespace lookfar::testing
