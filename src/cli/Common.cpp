@@ -3,6 +3,7 @@
 #include <unistd.h>
 #include <strings.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <fstream>
@@ -290,7 +291,7 @@ double parseEarthRadiusOption(const std::string& text, const std::string& earth_
 
 RunContext prepareRun(const std::string& command, const CommonOptions& options,
                       const std::vector<std::string>& outputs,
-                      const std::vector<std::string>& extra_inputs) {
+                      const std::vector<std::string>& extra_inputs, DemCells cells) {
     RunContext ctx;
     ctx.start = std::chrono::steady_clock::now();
     ctx.options = options;
@@ -340,7 +341,11 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
             }
         }
     }
-    ctx.dem = readDem(options.dem, read);
+    ctx.dem = std::move(probe);
+    ctx.grid = ctx.dem.geometry;
+    ctx.window = {0, 0, ctx.grid.width(), ctx.grid.height()};
+    if (cells == DemCells::Whole)
+        readDemWindow(ctx, ctx.window);
     ctx.earth = EarthModel(shape, ctx.dem.crs.ellipsoid, radius, options.refraction);
 
     RunDescription& run = ctx.run;
@@ -349,13 +354,13 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
     run.dem_path = escapeInvalidUtf8(options.dem);
     run.crs_name = ctx.dem.crs.name;
     run.crs_code = ctx.dem.crs.epsg;
-    run.width = ctx.dem.geometry.width();
-    run.height = ctx.dem.geometry.height();
-    run.cell_size_m = ctx.dem.geometry.nominalCellSizeM();
+    run.width = ctx.grid.width();
+    run.height = ctx.grid.height();
+    run.cell_size_m = ctx.grid.nominalCellSizeM();
     run.refraction = options.refraction;
     run.earth_model = options.earth_model;
     {
-        const auto& g = ctx.dem.geometry;
+        const auto& g = ctx.grid;
         MapPoint centre{g.mapX((g.width() - 1) / 2.0), g.mapY((g.height() - 1) / 2.0)};
         run.earth_radius_m = ctx.earth.nominalRadius(latitudeOf(ctx, centre));
     }
@@ -364,6 +369,65 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
     run.target_height_m = ctx.target_height_m;
     run.method = options.method;
     return ctx;
+}
+
+CellWindow workWindow(const RunContext& ctx, const std::vector<Observer>& observers) {
+    const GridGeometry& g = ctx.grid;
+    if (!std::isfinite(ctx.reach_m) || observers.empty())
+        return {0, 0, g.width(), g.height()};
+    int c0 = g.width(), r0 = g.height(), c1 = -1, r1 = -1;
+    for (const Observer& o : observers) {
+        const CellWindow w = reachWindow(g, o, ctx.reach_m);
+        c0 = std::min(c0, w.col0);
+        r0 = std::min(r0, w.row0);
+        c1 = std::max(c1, w.col0 + w.width - 1);
+        r1 = std::max(r1, w.row0 + w.height - 1);
+    }
+    // One cell of margin: the engines interpolate between a cell and its neighbour.
+    c0 = std::max(0, c0 - 1);
+    r0 = std::max(0, r0 - 1);
+    c1 = std::min(g.width() - 1, c1 + 1);
+    r1 = std::min(g.height() - 1, r1 + 1);
+    return {c0, r0, c1 - c0 + 1, r1 - r0 + 1};
+}
+
+void readDemWindow(RunContext& ctx, const CellWindow& window) {
+    DemReadOptions read;
+    read.band = ctx.options.band;
+    if (!ctx.options.z_unit.empty())
+        read.z_unit = ctx.dem.z_unit;
+    read.win_col = window.col0;
+    read.win_row = window.row0;
+    read.win_width = window.width;
+    read.win_height = window.height;
+    ctx.dem = readDem(ctx.options.dem, read);
+    ctx.window = window;
+}
+
+Observer inWindow(const RunContext& ctx, Observer o) {
+    o.col -= ctx.window.col0;
+    o.row -= ctx.window.row0;
+    return o;
+}
+
+float groundAt(const RunContext& ctx, int col, int row) {
+    return ctx.dem.z(col - ctx.window.col0, row - ctx.window.row0);
+}
+
+void requireData(const RunContext& ctx, const std::string& what, const MapPoint& given,
+                 const Observer& o) {
+    if (std::isnan(groundAt(ctx, o.col, o.row))) {
+        char buf[256];
+        std::snprintf(buf, sizeof buf, " %.10g,%.10g lies on a no-data cell of %s", given.x,
+                      given.y, ctx.dem.path.c_str());
+        throw InputError(what + buf);
+    }
+}
+
+void requireData(const RunContext& ctx, const PlacedSites& placed) {
+    for (std::size_t i = 0; i < placed.rows.size(); ++i) {
+        requireData(ctx, placed.what[i], {placed.rows[i].x, placed.rows[i].y}, placed.observers[i]);
+    }
 }
 
 MapPoint toDemCrs(const RunContext& ctx, const MapPoint& p) {
@@ -392,7 +456,8 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
     if (!ctx.options.crs.empty())
         to_dem = std::make_unique<CoordinateTransform>(ctx.options.crs, ctx.dem.crs.wkt);
     const LonLatOf lonlat(ctx.dem.crs.wkt);
-    const auto& g = ctx.dem.geometry;
+    const auto& g = ctx.grid;
+    const bool cells_read = !ctx.dem.z.empty();
     std::vector<Observer> out;
     if (points_dem)
         points_dem->clear();
@@ -412,12 +477,8 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
         o.col = g.cellColOf(p.x);
         o.row = g.cellRowOf(p.y);
         o.height_m = heights_m[i];
-        if (std::isnan(ctx.dem.z(o.col, o.row))) {
-            char buf[256];
-            std::snprintf(buf, sizeof buf, " %.10g,%.10g lies on a no-data cell of %s", x, y,
-                          ctx.dem.path.c_str());
-            throw InputError(what[i] + buf);
-        }
+        if (cells_read)
+            requireData(ctx, what[i], {x, y}, o);
         o.latitude_deg = lonlat.apply({g.mapX(o.col), g.mapY(o.row)}).y;
         out.push_back(o);
         if (points_dem)
@@ -450,6 +511,7 @@ PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const 
         heights.push_back(site.height_m.value_or(ctx.observer_height_m));
     }
     placed.observers = placeObservers(ctx, what, given, heights, names, &placed.points_dem);
+    placed.what = std::move(what);
     return placed;
 }
 
@@ -457,12 +519,12 @@ RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType 
                       double nodata) {
     RasterSpec spec;
     spec.path = path;
-    spec.width = ctx.dem.geometry.width();
-    spec.height = ctx.dem.geometry.height();
+    spec.width = ctx.grid.width();
+    spec.height = ctx.grid.height();
     spec.bands = bands;
     spec.type = type;
     spec.nodata = nodata;
-    spec.geotransform = ctx.dem.geometry.geotransform();
+    spec.geotransform = ctx.grid.geotransform();
     spec.crs_wkt = ctx.dem.crs.wkt;
     spec.metadata = rasterMetadata(ctx.run);
     spec.creation_options = ctx.options.creation_options;
@@ -475,13 +537,18 @@ RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType 
     return spec;
 }
 
+void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data) {
+    const CellWindow& w = ctx.window;
+    writer.writeWindow(band, w.col0, w.row0, w.width, w.height, data, w.width);
+}
+
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
                const void* data, const std::string& description, const std::string& unit) {
     RasterSpec spec = outputSpec(ctx, path, type, 1, nodata);
     spec.band_descriptions = {description};
     spec.unit_type = unit;
     RasterWriter writer(spec);
-    writer.writeBand(1, data);
+    writeWindowBand(ctx, writer, 1, data);
     writer.commit();
 }
 

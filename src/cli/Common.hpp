@@ -22,6 +22,7 @@
 #include "lookfar/io/SitesCsv.hpp"
 #include "lookfar/report/Summary.hpp"
 #include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/viewshed/Viewshed.hpp"
 
 namespace lookfar::cli {
 
@@ -109,7 +110,9 @@ class TerminalProgress final : public Progress {
 /// Everything a command needs once its options are parsed and checked.
 struct RunContext {
     CommonOptions options;
-    Dem dem;
+    Dem dem;            ///< the cells read (the window of `window`) and their geometry
+    GridGeometry grid;  ///< the whole DEM's grid: observers are placed and outputs written on it
+    CellWindow window;  ///< the DEM cells held in dem.z, in cells of the whole DEM
     EarthModel earth;
     double observer_height_m = 1.7;
     double target_height_m = 0;
@@ -120,11 +123,34 @@ struct RunContext {
     std::vector<std::string> inputs;  ///< paths of every input (for output checks)
 };
 
-/// Validates the common options (exit 2 on bad values), checks every output path before any
-/// work (exit 4), then reads the DEM (exit 3). `outputs` are the paths this run will write.
+/// When prepareRun reads the DEM's cells.
+enum class DemCells {
+    Whole,  ///< all of them, in prepareRun
+    Later,  ///< none: the command places its observers, then calls readDemWindow
+};
+
+/// Validates the common options (exit 2 on bad values), opens the DEM (exit 3), checks every
+/// output path before any work (exit 4), then reads the DEM's cells unless `cells` is Later.
+/// `outputs` are the paths this run will write.
 RunContext prepareRun(const std::string& command, const CommonOptions& options,
                       const std::vector<std::string>& outputs,
-                      const std::vector<std::string>& extra_inputs = {});
+                      const std::vector<std::string>& extra_inputs = {},
+                      DemCells cells = DemCells::Whole);
+
+/// The DEM cells that work limited by --reach around `observers` (cells of the whole DEM) needs:
+/// the smallest rectangle holding every observer's reach window with one cell of margin; the
+/// whole DEM when the reach is unlimited.
+CellWindow workWindow(const RunContext& ctx, const std::vector<Observer>& observers);
+/// Reads the DEM cells of `window` (cells of the whole DEM) into ctx.dem (exit 3).
+void readDemWindow(RunContext& ctx, const CellWindow& window);
+/// `o` (placed on the whole DEM) in the cells of the window read.
+Observer inWindow(const RunContext& ctx, Observer o);
+/// Elevation of a cell of the whole DEM, which must lie in the window read.
+float groundAt(const RunContext& ctx, int col, int row);
+/// Throws InputError naming `what` and the point as given when the cell of `o` (placed on the
+/// whole DEM, inside the window read) holds no data.
+void requireData(const RunContext& ctx, const std::string& what, const MapPoint& given,
+                 const Observer& o);
 
 /// Parses a non-negative, finite height option (exit 2 otherwise).
 double parseHeightOption(const std::string& text, const std::string& what);
@@ -134,8 +160,9 @@ double parseReachOption(const std::string& text);
 /// `earth_model` is "sphere": the other models take no radius.
 double parseEarthRadiusOption(const std::string& text, const std::string& earth_model);
 
-/// Places a point given in --crs coordinates on the DEM: the cell that contains it.
-/// Throws InputError when outside the DEM or on no-data (naming the point and the DEM).
+/// Places a point given in --crs coordinates on the DEM: the cell of the whole DEM that contains
+/// it. Throws InputError when outside the DEM or, once cells are read, on no-data (naming the
+/// point and the DEM; before the cells are read, call requireData after readDemWindow).
 Observer placeObserver(const RunContext& ctx, const std::string& what, double x, double y,
                        double height_m, const std::string& name);
 /// placeObserver for many points at once, with one PROJ transform for all of them (creating a
@@ -151,7 +178,10 @@ struct PlacedSites {
     std::vector<Site> rows;            ///< as read (name, x/y as given, height, line)
     std::vector<Observer> observers;   ///< one per row; height = the row's or --observer-height
     std::vector<MapPoint> points_dem;  ///< each row's point in the DEM's CRS
+    std::vector<std::string> what;     ///< each row named for messages (file, line, name)
 };
+/// requireData for every placed row, in order.
+void requireData(const RunContext& ctx, const PlacedSites& placed);
 /// Reads a sites CSV (docs/design.md) and places every row on the DEM. `role` names a row in
 /// messages ("site", "station", "candidate"). With `unique_because` non-empty, a repeated name is
 /// bad input naming both lines and the reason ("the matrix needs unique names").
@@ -165,7 +195,10 @@ double latitudeOf(const RunContext& ctx, const MapPoint& p_dem);
 /// Raster spec for an output of the DEM's size, geotransform and CRS, with metadata.
 RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
                       double nodata);
-/// Writes a one-band grid (uint8_t, uint16_t or float) atomically.
+/// Writes `data`, a grid over the window read (ctx.window), into band `band` of an output raster
+/// made by outputSpec.
+void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data);
+/// Writes a one-band grid over the window read (uint8_t, uint16_t or float) atomically.
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
                const void* data, const std::string& description, const std::string& unit = "");
 

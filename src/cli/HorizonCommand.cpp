@@ -140,7 +140,7 @@ nlohmann::json statsJson(const GridStats& s) {
 }
 
 double centreLatitude(const RunContext& ctx) {
-    const auto& g = ctx.dem.geometry;
+    const auto& g = ctx.grid;
     return latitudeOf(ctx, {g.mapX((g.width() - 1) / 2.0), g.mapY((g.height() - 1) / 2.0)});
 }
 
@@ -392,10 +392,13 @@ void runPoint(const HorizonState& st) {
         throw UsageError("--step: " + printfNumber("%g", st.step) + "° is outside 0.05° to 90°");
     }
     const MapPoint given = parsePoint(st.at, "--at");
-    RunContext ctx = prepareRun("horizon", st.options, {st.csv, st.plot});
+    RunContext ctx = prepareRun("horizon", st.options, {st.csv, st.plot}, {}, DemCells::Later);
     const Observer spot =
         placeObserver(ctx, "--at", given.x, given.y, ctx.observer_height_m, "spot");
-    const GridGeometry& g = ctx.dem.geometry;
+    readDemWindow(ctx, workWindow(ctx, {spot}));  // the cells within reach of the spot
+    requireData(ctx, "--at", given, spot);
+    const GridGeometry& g = ctx.dem.geometry;  // of the window read: horizon points are in it
+    const Observer spot_w = inWindow(ctx, spot);
     HorizonOptions opt;
     opt.observer_height_m = ctx.observer_height_m;
     opt.reach_m = ctx.reach_m;
@@ -405,7 +408,7 @@ void runPoint(const HorizonState& st) {
     ctx.run.extra["AT"] = fmtg(given.x) + "," + fmtg(given.y);
     ctx.run.extra["STEP_DEG"] = fmtg(st.step);
     const HorizonProfile p =
-        horizonProfile(ctx.dem.z, g, ctx.earth, spot.col, spot.row, st.step, opt);
+        horizonProfile(ctx.dem.z, g, ctx.earth, spot_w.col, spot_w.row, st.step, opt);
 
     // Horizon points back in the coordinates of --at.
     std::unique_ptr<CoordinateTransform> back;
@@ -415,7 +418,7 @@ void runPoint(const HorizonState& st) {
         MapPoint m{g.mapX(col), g.mapY(row)};
         return back ? back->apply(m) : m;
     };
-    const MapPoint cell = toUser(spot.col, spot.row);
+    const MapPoint cell = toUser(spot_w.col, spot_w.row);
 
     nlohmann::json j = summaryBase(ctx.run);
     nlohmann::json sectors = nlohmann::json::array();

@@ -41,10 +41,10 @@ struct PairGeometry {
 
 void runIntervis(const IntervisState& s) {
     const CommonOptions& o = s.options;
-    RunContext ctx = prepareRun("intervis", o, {s.matrix, s.lines}, {s.stations});
+    RunContext ctx = prepareRun("intervis", o, {s.matrix, s.lines}, {s.stations}, DemCells::Later);
     ctx.run.method = "reference";
     ctx.run.extra["STATIONS"] = s.stations;
-    const GridGeometry& g = ctx.dem.geometry;
+    const GridGeometry& g = ctx.grid;
 
     // Stations: names unique, inside the DEM and on data (exit 3 naming the file and line).
     const PlacedSites placed =
@@ -54,11 +54,16 @@ void runIntervis(const IntervisState& s) {
     if (stations.size() < 2)
         throw InputError(s.stations + ": intervisibility needs at least two stations");
     const int n = static_cast<int>(stations.size());
+    readDemWindow(ctx, workWindow(ctx, stations));  // the cells within reach of a station
+    requireData(ctx, placed);
 
     IntervisOptions opt;
     opt.reach_m = ctx.reach_m;
-    const IntervisResult res =
-        computeIntervisibility(ctx.dem.z, g, ctx.earth, stations, opt, *ctx.progress);
+    std::vector<Observer> stations_in_window;
+    for (const Observer& st : stations)
+        stations_in_window.push_back(inWindow(ctx, st));
+    const IntervisResult res = computeIntervisibility(ctx.dem.z, ctx.dem.geometry, ctx.earth,
+                                                      stations_in_window, opt, *ctx.progress);
 
     // Distances and azimuths of every unordered pair (PROJ geodesic; grid azimuths from the map
     // coordinates, which on a lat/lon grid are the true ones).
@@ -179,7 +184,7 @@ void runIntervis(const IntervisState& s) {
     j["stations_seen_by_none"] = seen_by_none;
     nlohmann::json list = nlohmann::json::array();
     for (int i = 0; i < n; ++i) {
-        const float ground = ctx.dem.z(stations[i].col, stations[i].row);
+        const float ground = groundAt(ctx, stations[i].col, stations[i].row);
         list.push_back({{"name", stations[i].name},
                         {"x", points[i].x},
                         {"y", points[i].y},

@@ -36,7 +36,7 @@ struct PlacedPath {
 };
 
 PlacedPath placePath(const RunContext& ctx, const MapPoint& a, const MapPoint& b) {
-    const GridGeometry& g = ctx.dem.geometry;
+    const GridGeometry& g = ctx.grid;
     PlacedPath p;
     const LonLatOf ll(ctx.dem.crs.wkt);
     const Geodesic geo(ctx.dem.crs.ellipsoid);
@@ -81,6 +81,27 @@ PlacedPath placePath(const RunContext& ctx, const MapPoint& a, const MapPoint& b
     p.input.latitude_deg = mid.y;
     p.input.azimuth_deg = geo.inverse(mid.x, mid.y, p.b_ll.x, p.b_ll.y).azimuth1_deg;
     return p;
+}
+
+/// The DEM cells the profile samples: those around every sample, with two cells of margin so
+/// that interpolation on the window meets the same neighbours as on the whole DEM.
+CellWindow pathWindow(const GridGeometry& g, const PathProfileInput& in) {
+    double c_lo = in.samples.front().col, c_hi = c_lo;
+    double r_lo = in.samples.front().row, r_hi = r_lo;
+    for (const PathSample& p : in.samples) {
+        c_lo = std::fmin(c_lo, p.col);
+        c_hi = std::fmax(c_hi, p.col);
+        r_lo = std::fmin(r_lo, p.row);
+        r_hi = std::fmax(r_hi, p.row);
+    }
+    const auto clamp = [](double v, int n) {
+        return static_cast<int>(std::fmin(std::fmax(v, 0.0), n - 1.0));
+    };
+    const int c0 = clamp(std::floor(c_lo) - 2, g.width()),
+              c1 = clamp(std::ceil(c_hi) + 2, g.width());
+    const int r0 = clamp(std::floor(r_lo) - 2, g.height()),
+              r1 = clamp(std::ceil(r_hi) + 2, g.height());
+    return {c0, r0, c1 - c0 + 1, r1 - r0 + 1};
 }
 
 std::string profileCsv(const PathProfileResult& r, const PlacedPath& path, bool geographic) {
@@ -242,17 +263,25 @@ void runLink(const LinkState& s) {
     }
     const MapPoint from_in = parsePoint(s.from, "--from");
     const MapPoint to_in = parsePoint(s.to, "--to");
-    RunContext ctx = prepareRun("link", o, {s.csv, s.plot});
+    RunContext ctx = prepareRun("link", o, {s.csv, s.plot}, {}, DemCells::Later);
     ctx.run.observer_height_m = from_h;
     ctx.run.target_height_m = to_h;
     ctx.run.method = "exact";
     ctx.run.reach_m = std::numeric_limits<double>::infinity();
     // Outside the DEM or on a no-data cell: exit 3, with the point as typed.
-    placeObserver(ctx, "--from", from_in.x, from_in.y, from_h, "from");
-    placeObserver(ctx, "--to", to_in.x, to_in.y, to_h, "to");
+    const Observer from_cell = placeObserver(ctx, "--from", from_in.x, from_in.y, from_h, "from");
+    const Observer to_cell = placeObserver(ctx, "--to", to_in.x, to_in.y, to_h, "to");
     const MapPoint a = toDemCrs(ctx, from_in), b = toDemCrs(ctx, to_in);
 
     PlacedPath path = placePath(ctx, a, b);
+    readDemWindow(ctx, pathWindow(ctx.grid, path.input));  // only the cells along the path
+    requireData(ctx, "--from", from_in, from_cell);
+    requireData(ctx, "--to", to_in, to_cell);
+    for (PathSample& sample : path.input.samples) {
+        // Exact: both are multiples of the sample's last bit, and the difference is smaller.
+        sample.col -= ctx.window.col0;
+        sample.row -= ctx.window.row0;
+    }
     path.input.from_height_m = from_h;
     path.input.to_height_m = to_h;
     path.input.frequency_mhz = frequency_mhz;

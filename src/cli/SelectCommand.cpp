@@ -33,12 +33,13 @@ struct SelectState {
 };
 
 /// Reads the weight raster and checks it lies on the DEM's grid (exit 3 naming the file).
+/// Only the window of the DEM that was read is read (and checked) of it.
 Grid<float> readWeights(const RunContext& ctx, const std::string& path) {
     DemReadOptions read;
     read.z_unit = LinearUnit{"weight", 1.0};  // weights are not lengths: never convert
-    Dem w = readDem(path, read);
-    const GridGeometry& a = ctx.dem.geometry;
-    const GridGeometry& b = w.geometry;
+    const Dem whole = probeDem(path, read);
+    const GridGeometry& a = ctx.grid;
+    const GridGeometry& b = whole.geometry;
     if (a.width() != b.width() || a.height() != b.height()) {
         throw InputError(path + ": the weight raster has " + std::to_string(b.width()) + " × " +
                          std::to_string(b.height()) + " cells, the DEM " +
@@ -54,17 +55,23 @@ Grid<float> readWeights(const RunContext& ctx, const std::string& path) {
                              "be on the DEM's grid (same origin and cell size)");
         }
     }
-    if (!CoordinateTransform(w.crs.wkt, ctx.dem.crs.wkt).identity()) {
-        throw InputError(path + ": the weight raster's CRS (" + w.crs.name +
+    if (!CoordinateTransform(whole.crs.wkt, ctx.dem.crs.wkt).identity()) {
+        throw InputError(path + ": the weight raster's CRS (" + whole.crs.name +
                          ") is not the DEM's (" + ctx.dem.crs.name +
                          "); it must be on the DEM's grid");
     }
+    read.win_col = ctx.window.col0;
+    read.win_row = ctx.window.row0;
+    read.win_width = ctx.window.width;
+    read.win_height = ctx.window.height;
+    Dem w = readDem(path, read);
     for (int r = 0; r < w.z.height(); ++r) {
         for (int c = 0; c < w.z.width(); ++c) {
             const float v = w.z(c, r);
             if (v < 0 || std::isinf(v)) {
                 throw InputError(path + ": the weight raster holds " + printfFinite("%g", v) +
-                                 " at column " + std::to_string(c) + ", row " + std::to_string(r) +
+                                 " at column " + std::to_string(ctx.window.col0 + c) + ", row " +
+                                 std::to_string(ctx.window.row0 + r) +
                                  "; weights must be finite and ≥ 0");
             }
         }
@@ -106,19 +113,24 @@ void runSelect(const SelectState& s) {
     std::vector<std::string> inputs = {s.candidates};
     if (!s.weight.empty())
         inputs.push_back(s.weight);
-    RunContext ctx = prepareRun("select", o, {s.output, s.csv}, inputs);
+    RunContext ctx = prepareRun("select", o, {s.output, s.csv}, inputs, DemCells::Later);
     const PlacedSites placed =
         placeSitesCsv(ctx, s.candidates, "candidate", "the ranking needs unique names");
     const std::vector<Site>& sites = placed.rows;
-    const std::vector<Observer>& candidates = placed.observers;
+    const std::vector<Observer>& candidates = placed.observers;  // cells of the whole DEM
     const int n = static_cast<int>(sites.size());
     if (has_count && s.count > n) {
         throw UsageError("--count: " + std::to_string(s.count) + " is more than the " +
                          std::to_string(n) + " candidates in " + s.candidates);
     }
+    readDemWindow(ctx, workWindow(ctx, candidates));  // the cells within reach of a candidate
+    requireData(ctx, placed);
     Grid<float> weights;
     if (!s.weight.empty())
         weights = readWeights(ctx, s.weight);
+    std::vector<Observer> candidates_in_window;
+    for (const Observer& c : candidates)
+        candidates_in_window.push_back(inWindow(ctx, c));
 
     SiteSelectionOptions opt;
     opt.max_sites = has_count ? s.count : n;
@@ -127,8 +139,8 @@ void runSelect(const SelectState& s) {
     opt.reach_m = ctx.reach_m;
     opt.method = o.method == "reference" ? ViewshedMethod::Reference : ViewshedMethod::Fast;
     opt.weight = s.weight.empty() ? nullptr : &weights;
-    const SiteSelectionResult res =
-        selectSites(ctx.dem.z, ctx.dem.geometry, ctx.earth, candidates, opt, *ctx.progress);
+    const SiteSelectionResult res = selectSites(ctx.dem.z, ctx.dem.geometry, ctx.earth,
+                                                candidates_in_window, opt, *ctx.progress);
 
     std::string chosen;
     for (const SelectedSite& p : res.ranked)
@@ -192,7 +204,7 @@ void runSelect(const SelectState& s) {
     nlohmann::json all = nlohmann::json::array();
     for (int i = 0; i < n; ++i) {
         const Observer& c = candidates[i];
-        const float ground = ctx.dem.z(c.col, c.row);
+        const float ground = groundAt(ctx, c.col, c.row);
         nlohmann::json e = {{"name", c.name},
                             {"x", sites[i].x},
                             {"y", sites[i].y},

@@ -48,7 +48,7 @@ struct PlacedSite {
 };
 
 nlohmann::json observerJson(const RunContext& ctx, const PlacedSite& p, const ViewshedStats& s) {
-    const GridGeometry& g = ctx.dem.geometry;
+    const GridGeometry& g = ctx.grid;
     nlohmann::json bands = nlohmann::json::object();
     for (int b = 0; b < kDistanceBandCount; ++b)
         bands[distanceBandLabel(b)] = s.visible_area_by_band_m2[b];
@@ -105,10 +105,10 @@ void runViewshed(const ViewshedState& st) {
     std::vector<std::string> extra_inputs;
     if (!single)
         extra_inputs.push_back(st.sites);
-    RunContext ctx = prepareRun("viewshed", st.options, outputs, extra_inputs);
-    const GridGeometry& g = ctx.dem.geometry;
+    RunContext ctx = prepareRun("viewshed", st.options, outputs, extra_inputs, DemCells::Later);
 
-    // Observers, placed on the DEM (exit 3 when outside or on no-data).
+    // Observers, placed on the DEM (exit 3 when outside); then the cells within their reach are
+    // read (exit 3 when an observer stands on no-data).
     std::vector<PlacedSite> placed;
     if (single) {
         PlacedSite p;
@@ -117,6 +117,8 @@ void runViewshed(const ViewshedState& st) {
         p.observer =
             placeObserver(ctx, "--observer", given.x, given.y, ctx.observer_height_m, st.name);
         placed.push_back(p);
+        readDemWindow(ctx, workWindow(ctx, {p.observer}));
+        requireData(ctx, "--observer", given, p.observer);
     } else {
         const PlacedSites rows = placeSitesCsv(ctx, st.sites, "site");
         for (std::size_t i = 0; i < rows.rows.size(); ++i) {
@@ -126,9 +128,12 @@ void runViewshed(const ViewshedState& st) {
             p.observer = rows.observers[i];
             placed.push_back(p);
         }
+        readDemWindow(ctx, workWindow(ctx, rows.observers));
+        requireData(ctx, rows);
     }
     for (PlacedSite& p : placed)
-        p.ground_m = ctx.dem.z(p.observer.col, p.observer.row);
+        p.ground_m = groundAt(ctx, p.observer.col, p.observer.row);
+    const GridGeometry& g = ctx.dem.geometry;  // of the window read
 
     ViewshedOptions opt;
     opt.target_height_m = ctx.target_height_m;
@@ -182,27 +187,28 @@ void runViewshed(const ViewshedState& st) {
 
     if (single) {
         const PlacedSite& p = placed.front();
-        ViewshedGrids grids =
-            computeViewshed(ctx.dem.z, g, ctx.earth, p.observer, opt, *ctx.progress);
-        const ViewshedStats s = summarizeViewshed(grids.visible, grids.window, g, p.observer);
+        const Observer o = inWindow(ctx, p.observer);
+        ViewshedGrids grids = computeViewshed(ctx.dem.z, g, ctx.earth, o, opt, *ctx.progress);
+        const ViewshedStats s = summarizeViewshed(grids.visible, grids.window, g, o);
         ctx.dem.z = Grid<float>();  // the elevations are no longer needed: free them first
         openRaster(st.output, PixelType::Byte, kNoVisibility,
                    "visibility from " + p.observer.name +
                        ": 1 visible, 0 hidden, 255 no data (outside reach or DEM no-data)",
-                   "")
-            .writeBand(1, grids.visible.data());
+                   "");
+        writeWindowBand(ctx, *writers.back(), 1, grids.visible.data());
         grids.visible = Grid<std::uint8_t>();
         if (opt.want_margin) {
-            openRaster(st.margin, PixelType::Float32, nan, margin_text, "m")
-                .writeBand(1, grids.margin.data());
+            writeWindowBand(ctx, openRaster(st.margin, PixelType::Float32, nan, margin_text, "m"),
+                            1, grids.margin.data());
             grids.margin = Grid<float>();
         }
         if (opt.want_angle) {
-            openRaster(st.angle, PixelType::Float32, nan,
-                       "elevation angle from the eye to the target point, degrees above the eye's "
-                       "local horizontal (negative below)",
-                       "deg")
-                .writeBand(1, grids.angle.data());
+            writeWindowBand(ctx,
+                            openRaster(st.angle, PixelType::Float32, nan,
+                                       "elevation angle from the eye to the target point, degrees "
+                                       "above the eye's local horizontal (negative below)",
+                                       "deg"),
+                            1, grids.angle.data());
         }
         j["observers"] = nlohmann::json::array({observerJson(ctx, p, s)});
 
@@ -232,7 +238,7 @@ void runViewshed(const ViewshedState& st) {
     } else {
         std::vector<Observer> observers;
         for (const PlacedSite& p : placed)
-            observers.push_back(p.observer);
+            observers.push_back(inWindow(ctx, p.observer));
         MultiViewshedResult res =
             multiViewshed(ctx.dem.z, g, ctx.earth, observers, opt, *ctx.progress);
         const CoverageStats cov = summarizeCoverage(res.count, g, static_cast<int>(placed.size()));
@@ -241,13 +247,14 @@ void runViewshed(const ViewshedState& st) {
                    "number of the " + std::to_string(placed.size()) +
                        " sites that see the cell; 65535 no data (outside every site's reach or DEM "
                        "no-data)",
-                   "")
-            .writeBand(1, res.count.data());
+                   "");
+        writeWindowBand(ctx, *writers.back(), 1, res.count.data());
         res.count = Grid<std::uint16_t>();
         if (opt.want_margin) {
-            openRaster(st.margin, PixelType::Float32, nan,
-                       "largest over the sites of the " + margin_text, "m")
-                .writeBand(1, res.best_margin.data());
+            writeWindowBand(ctx,
+                            openRaster(st.margin, PixelType::Float32, nan,
+                                       "largest over the sites of the " + margin_text, "m"),
+                            1, res.best_margin.data());
         }
         nlohmann::json obs = nlohmann::json::array();
         TextTable t("Viewsheds of " + std::to_string(placed.size()) + " sites on " + ctx.dem.path);

@@ -11,21 +11,33 @@ GridGeometry::GridGeometry(int width, int height, const std::array<double, 6>& g
     : width_(width),
       height_(height),
       gt_(geotransform),
+      window_gt_(geotransform),
       geographic_(geographic),
       unit_m_(linear_unit_m),
       ellipsoid_(ellipsoid) {}
 
+GridGeometry GridGeometry::window(int col0, int row0, int width, int height) const {
+    GridGeometry w = *this;
+    w.width_ = width;
+    w.height_ = height;
+    w.col_off_ = col_off_ + col0;
+    w.row_off_ = row_off_ + row0;
+    w.window_gt_[0] = gt_[0] + w.col_off_ * gt_[1];
+    w.window_gt_[3] = gt_[3] + w.row_off_ * gt_[5];
+    return w;
+}
+
 bool GridGeometry::containsMap(double x, double y) const {
-    double c = (x - gt_[0]) / gt_[1];
-    double r = (y - gt_[3]) / gt_[5];
+    double c = (x - gt_[0]) / gt_[1] - col_off_;
+    double r = (y - gt_[3]) / gt_[5] - row_off_;
     return c >= 0 && r >= 0 && c < width_ && r < height_;
 }
 
 int GridGeometry::cellColOf(double x) const {
-    return static_cast<int>(std::floor((x - gt_[0]) / gt_[1]));
+    return static_cast<int>(std::floor((x - gt_[0]) / gt_[1])) - col_off_;
 }
 int GridGeometry::cellRowOf(double y) const {
-    return static_cast<int>(std::floor((y - gt_[3]) / gt_[5]));
+    return static_cast<int>(std::floor((y - gt_[3]) / gt_[5])) - row_off_;
 }
 
 double GridGeometry::cellWidthM(int row) const {
@@ -45,7 +57,7 @@ double GridGeometry::cellHeightM(int row) const {
 double GridGeometry::cellAreaM2(int row) const {
     if (!geographic_)
         return std::fabs(gt_[1] * gt_[5]) * unit_m_ * unit_m_;
-    double lat_top = gt_[3] + row * gt_[5];
+    double lat_top = gt_[3] + (row + row_off_) * gt_[5];
     double lat_bottom = lat_top + gt_[5];
     return std::fabs(ellipsoid_.zoneAreaPerRadian(lat_top) -
                      ellipsoid_.zoneAreaPerRadian(lat_bottom)) *

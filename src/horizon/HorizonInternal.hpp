@@ -30,6 +30,11 @@ class GridMetric {
     explicit GridMetric(const GridGeometry& geometry);
 
     bool geographic() const { return geographic_; }
+    /// Offset of the grid in the whole DEM when it is a window of it (GridGeometry::colOffset).
+    /// Rows and columns given to this metric are cells of the whole DEM, so that a window gives
+    /// the same bits as the whole DEM.
+    int colOffset() const { return col_off_; }
+    int rowOffset() const { return row_off_; }
     /// Signed metres east per column step at (continuous) row `row`.
     double eastPerCol(double row) const {
         if (!geographic_)
@@ -67,12 +72,13 @@ class GridMetric {
         const std::size_t last = table_.size() / 2 - 1;
         std::size_t i = 0;
         double f = 0;
-        if (x > 0) {
-            i = static_cast<std::size_t>(x);
+        if (x > 2.0 * row_off_) {
+            // The half-row index in the whole DEM, then in this grid's table.
+            const std::size_t whole_i = static_cast<std::size_t>(x);
+            f = x - static_cast<double>(whole_i);
+            i = whole_i - 2 * static_cast<std::size_t>(row_off_);
             if (i >= last) {
                 i = last, f = 0;
-            } else {
-                f = x - static_cast<double>(i);
             }
         }
         const double* t = table_.data() + 2 * i;
@@ -86,7 +92,8 @@ class GridMetric {
     bool geographic_ = false;
     double east_scale_ = 1;   // projected: gt1 · unit; geographic: gt1 in radians
     double north_scale_ = 1;  // projected: gt5 · unit; geographic: gt5 in radians
-    double row_first_ = -1;
+    double row_first_ = -1;   // of the whole DEM
+    int col_off_ = 0, row_off_ = 0;
     std::vector<double> table_;  // N(φ) cos φ, M(φ) in pairs, every half row from row_first_
 };
 

@@ -36,7 +36,8 @@ void sinCosDeg(double azimuth_deg, double& s, double& c) {
     }
 }
 
-GridMetric::GridMetric(const GridGeometry& g) : geographic_(g.geographic()) {
+GridMetric::GridMetric(const GridGeometry& g)
+    : geographic_(g.geographic()), col_off_(g.colOffset()), row_off_(g.rowOffset()) {
     const auto& gt = g.geotransform();
     if (!geographic_) {
         east_scale_ = gt[1] * g.linearUnitMetres();
@@ -56,9 +57,15 @@ GridMetric::GridMetric(const GridGeometry& g) : geographic_(g.geographic()) {
 }
 
 RayResult marchRay(const Grid<float>& dem, const GridMetric& metric, const Curvature& curvature,
-                   int c0, int r0, double z_eye, double sin_a, double cos_a, double reach_m) {
+                   int c0_grid, int r0_grid, double z_eye, double sin_a, double cos_a,
+                   double reach_m) {
     RayResult best;
+    // Positions are computed in cells of the whole DEM (the grid may be a window of it, at
+    // (off_c, off_r)); the grid is indexed at position − offset.
+    const int off_c = metric.colOffset(), off_r = metric.rowOffset();
+    const int c0 = c0_grid + off_c, r0 = r0_grid + off_r;
     const int w = dem.width(), h = dem.height();
+    const double c_lo = off_c, c_hi = off_c + w - 1, r_lo = off_r, r_hi = off_r + h - 1;
     // Cells per metre along the ray, from the aspect of the eye's row.
     const double dc = sin_a / metric.eastPerCol(r0);
     const double dr = cos_a / metric.northPerRow(r0);
@@ -75,8 +82,8 @@ RayResult marchRay(const Grid<float>& dem, const GridMetric& metric, const Curva
             best.found = true;
             best.t = t;
             best.distance_m = d;
-            best.col = c;
-            best.row = r;
+            best.col = c - off_c;  // exact: an integer less than a positive c
+            best.row = r - off_r;
             best.z = z;
         }
         return true;
@@ -86,14 +93,15 @@ RayResult marchRay(const Grid<float>& dem, const GridMetric& metric, const Curva
         const double inv = 1.0 / std::fabs(dc);
         for (int k = 1;; ++k) {
             int c = c0 + step * k;
-            if (c < 0 || c >= w)
+            if (c < c_lo || c > c_hi)
                 break;
             double r = r0 + dr * (k * inv);
-            if (!(r >= 0.0 && r <= h - 1))
+            if (!(r >= r_lo && r <= r_hi))
                 break;
             int ra = static_cast<int>(std::floor(r));
             double fy = r - ra;
-            double z = fy == 0.0 ? dem(c, ra) : (1.0 - fy) * dem(c, ra) + fy * dem(c, ra + 1);
+            const int gc = c - off_c, gr = ra - off_r;
+            double z = fy == 0.0 ? dem(gc, gr) : (1.0 - fy) * dem(gc, gr) + fy * dem(gc, gr + 1);
             if (!consider(c, r, z))
                 break;
         }
@@ -103,14 +111,15 @@ RayResult marchRay(const Grid<float>& dem, const GridMetric& metric, const Curva
         const double inv = 1.0 / std::fabs(dr);
         for (int k = 1;; ++k) {
             int r = r0 + step * k;
-            if (r < 0 || r >= h)
+            if (r < r_lo || r > r_hi)
                 break;
             double c = c0 + dc * (k * inv);
-            if (!(c >= 0.0 && c <= w - 1))
+            if (!(c >= c_lo && c <= c_hi))
                 break;
             int ca = static_cast<int>(std::floor(c));
             double fx = c - ca;
-            double z = fx == 0.0 ? dem(ca, r) : (1.0 - fx) * dem(ca, r) + fx * dem(ca + 1, r);
+            const int gc = ca - off_c, gr = r - off_r;
+            double z = fx == 0.0 ? dem(gc, gr) : (1.0 - fx) * dem(gc, gr) + fx * dem(gc + 1, gr);
             if (!consider(c, r, z))
                 break;
         }

@@ -140,11 +140,12 @@ Dem openAndDescribe(const std::string& path, const DemReadOptions& options, GDAL
         r0 + h > dem.full_height) {
         throw InternalError("window outside the raster " + path);
     }
-    std::array<double, 6> wgt = gt;
-    wgt[0] = gt[0] + c0 * gt[1];
-    wgt[3] = gt[3] + r0 * gt[5];
     double unit = dem.crs.geographic ? 1.0 : dem.crs.horizontal_unit.metres;
-    dem.geometry = GridGeometry(w, h, wgt, dem.crs.geographic, unit, dem.crs.ellipsoid);
+    // The window's geometry computes from the whole raster's geotransform, so coordinates and
+    // distances on it are the same bits as on the whole raster.
+    dem.geometry = GridGeometry(dem.full_width, dem.full_height, gt, dem.crs.geographic, unit,
+                                dem.crs.ellipsoid)
+                       .window(c0, r0, w, h);
     return dem;
 }
 

@@ -142,6 +142,7 @@ class FastEngine {
     std::ptrdiff_t width_;
     int height_;
     int c0_, r0_;
+    int col_off_, row_off_;  // of the DEM window in the whole DEM (SightlineSamples)
     const float* z_obs_;
     double eye_m_;
     double observer_m_;  ///< observer height above its cell
@@ -170,6 +171,8 @@ FastEngine::FastEngine(const Grid<float>& dem, const GridGeometry& geometry,
       height_(dem.height()),
       c0_(observer.col),
       r0_(observer.row),
+      col_off_(geometry.colOffset()),
+      row_off_(geometry.rowOffset()),
       z_obs_(dem.data() + dem.index(observer.col, observer.row)),
       eye_m_(dem(observer.col, observer.row) + observer.height_m),
       observer_m_(observer.height_m),
@@ -561,6 +564,8 @@ void FastEngine::decideExactly(const Octant& o, const Scratch& s, int a, int b, 
     ss.width = width_;
     ss.c0 = c0_;
     ss.r0 = r0_;
+    ss.col_off = col_off_;
+    ss.row_off = row_off_;
     ss.dc = col - c0_;
     ss.dr = row - r0_;
     ss.drop_m = drop;

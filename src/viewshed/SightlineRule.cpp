@@ -53,6 +53,8 @@ SightlineVerdict SightlineRule::judge(int col, int row, double target_height_m) 
     samples.width = dem_.width();
     samples.c0 = c0;
     samples.r0 = r0;
+    samples.col_off = geometry_.colOffset();
+    samples.row_off = geometry_.rowOffset();
     samples.dc = col - c0;
     samples.dr = row - r0;
     samples.drop_m = drop;

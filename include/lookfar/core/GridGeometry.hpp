@@ -40,19 +40,29 @@ class GridGeometry {
     GridGeometry(int width, int height, const std::array<double, 6>& geotransform, bool geographic,
                  double linear_unit_m, const Ellipsoid& ellipsoid);
 
+    /// The `width` × `height` window of this grid whose top-left cell is (col0, row0) of this
+    /// grid. Its cell (c, r) is cell (col0 + c, row0 + r) here, and every coordinate, size, area
+    /// and distance it gives is computed from the whole grid's geotransform exactly as here, so
+    /// engines give the same bits on a window as on the whole grid.
+    GridGeometry window(int col0, int row0, int width, int height) const;
+
     int width() const { return width_; }
     int height() const { return height_; }
+    /// Offset of this grid's cells in the grid it is a window of (0 for a whole grid).
+    int colOffset() const { return col_off_; }
+    int rowOffset() const { return row_off_; }
     bool geographic() const { return geographic_; }
-    const std::array<double, 6>& geotransform() const { return gt_; }
+    /// GDAL's geotransform of this grid (of the window when it is one).
+    const std::array<double, 6>& geotransform() const { return window_gt_; }
     const Ellipsoid& ellipsoid() const { return ellipsoid_; }
     double linearUnitMetres() const { return unit_m_; }
 
     /// Map coordinates of a (continuous) cell coordinate; integers are cell centres.
-    double mapX(double col) const { return gt_[0] + (col + 0.5) * gt_[1]; }
-    double mapY(double row) const { return gt_[3] + (row + 0.5) * gt_[5]; }
+    double mapX(double col) const { return gt_[0] + (col + col_off_ + 0.5) * gt_[1]; }
+    double mapY(double row) const { return gt_[3] + (row + row_off_ + 0.5) * gt_[5]; }
     /// Continuous cell coordinate of a map coordinate.
-    double colOf(double x) const { return (x - gt_[0]) / gt_[1] - 0.5; }
-    double rowOf(double y) const { return (y - gt_[3]) / gt_[5] - 0.5; }
+    double colOf(double x) const { return (x - gt_[0]) / gt_[1] - 0.5 - col_off_; }
+    double rowOf(double y) const { return (y - gt_[3]) / gt_[5] - 0.5 - row_off_; }
     /// True when the map point lies inside the raster's extent.
     bool containsMap(double x, double y) const;
     /// The cell whose area contains the map point (caller checks containsMap first).
@@ -79,7 +89,9 @@ class GridGeometry {
   private:
     int width_ = 0;
     int height_ = 0;
-    std::array<double, 6> gt_{0, 1, 0, 0, 0, -1};
+    std::array<double, 6> gt_{0, 1, 0, 0, 0, -1};  ///< of the whole grid
+    std::array<double, 6> window_gt_{0, 1, 0, 0, 0, -1};
+    int col_off_ = 0, row_off_ = 0;  ///< of this window in the whole grid
     bool geographic_ = false;
     double unit_m_ = 1.0;
     Ellipsoid ellipsoid_;

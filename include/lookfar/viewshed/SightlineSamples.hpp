@@ -18,9 +18,12 @@ struct SightlineSamples {
     const float* dem = nullptr;  ///< row-major elevations, metres, NaN = no data
     std::ptrdiff_t width = 0;    ///< cells per row of `dem`
     int c0 = 0, r0 = 0;          ///< observer cell
-    int dc = 0, dr = 0;          ///< target offset from the observer, cells
-    double drop_m = 0;           ///< Δ: drop at the target after refraction, metres
-    double eye_m = 0;            ///< z_e, metres
+    /// Offset of `dem` in the whole DEM when it is a window of it (GridGeometry::colOffset): the
+    /// sample positions are computed in cells of the whole DEM, so a window gives the same bits.
+    int col_off = 0, row_off = 0;
+    int dc = 0, dr = 0;  ///< target offset from the observer, cells
+    double drop_m = 0;   ///< Δ: drop at the target after refraction, metres
+    double eye_m = 0;    ///< z_e, metres
 
     double z(int col, int row) const { return dem[row * width + col]; }
 
@@ -28,9 +31,10 @@ struct SightlineSamples {
     /// c0 + dc); NaN when the sample touches no-data.
     double columnGain(int col) const {
         const double t = static_cast<double>(col - c0) / dc;
-        const double y = r0 + t * dr;
-        const int ya = static_cast<int>(std::floor(y));
-        const double fy = y - ya;
+        const double y = (r0 + row_off) + t * dr;
+        const int y_floor = static_cast<int>(std::floor(y));
+        const double fy = y - y_floor;
+        const int ya = y_floor - row_off;
         const double zs = fy == 0.0 ? z(col, ya) : (1.0 - fy) * z(col, ya) + fy * z(col, ya + 1);
         return (zs - t * t * drop_m - eye_m) / t;
     }
@@ -39,9 +43,10 @@ struct SightlineSamples {
     /// r0 + dr); NaN when the sample touches no-data.
     double rowGain(int row) const {
         const double t = static_cast<double>(row - r0) / dr;
-        const double x = c0 + t * dc;
-        const int xa = static_cast<int>(std::floor(x));
-        const double fx = x - xa;
+        const double x = (c0 + col_off) + t * dc;
+        const int x_floor = static_cast<int>(std::floor(x));
+        const double fx = x - x_floor;
+        const int xa = x_floor - col_off;
         const double zs = fx == 0.0 ? z(xa, row) : (1.0 - fx) * z(xa, row) + fx * z(xa + 1, row);
         return (zs - t * t * drop_m - eye_m) / t;
     }
