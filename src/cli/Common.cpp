@@ -255,20 +255,28 @@ bool TerminalProgress::cancelled() const {
 // ---------------------------------------------------------------------------------------------
 
 double parseHeightOption(const std::string& text, const std::string& what) {
-    double h = parseLengthMetres(text, what);
-    if (!(h >= 0))
-        throw UsageError(what + ": " + text + " is negative; heights are above ground");
-    if (h > 1e5)
-        throw UsageError(what + ": " + text + " is over 100 km above the ground");
+    const double h = parseLengthMetres(text, what);
+    if (!(h >= 0)) {
+        throw UsageError(what + ": " + echoText(text) + " is negative; heights are above ground");
+    }
+    if (h > kMaxHeightAboveGroundM) {
+        throw UsageError(what + ": " + echoText(text) + " is over " + kMaxHeightAboveGroundText +
+                         " above the ground");
+    }
     return h;
 }
 
 double parseReachOption(const std::string& text) {
-    if (trim(text).empty())
-        return std::numeric_limits<double>::infinity();
-    double r = parseLengthMetres(text, "--reach");
+    if (text.empty())
+        return std::numeric_limits<double>::infinity();  // not given
+    if (trim(text).empty()) {
+        throw UsageError(
+            "--reach: the value is blank; give a distance such as 10km, or leave "
+            "--reach out for no limit");
+    }
+    const double r = parseLengthMetres(text, "--reach");
     if (!(r > 0))
-        throw UsageError("--reach: " + text + " must be a positive distance");
+        throw UsageError("--reach: " + echoText(text) + " must be a positive distance");
     return r;
 }
 
@@ -307,13 +315,13 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
     if (!options.z_unit.empty()) {
         z_unit = parseLinearUnit(options.z_unit);
         if (!z_unit)
-            throw UsageError("--z-unit: '" + options.z_unit + "' is not m, ft or us-ft");
+            throw UsageError("--z-unit: '" + echoText(options.z_unit) + "' is not m, ft or us-ft");
     }
     if (!options.crs.empty())
         validateCrs(options.crs, "--crs");
     for (const auto& co : options.creation_options) {
         if (co.find('=') == std::string::npos || co.front() == '=') {
-            throw UsageError("--co: '" + co + "' is not KEY=VALUE");
+            throw UsageError("--co: '" + echoText(co) + "' is not KEY=VALUE");
         }
     }
 #ifdef _OPENMP
@@ -463,7 +471,18 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
         points_dem->clear();
     for (std::size_t i = 0; i < points.size(); ++i) {
         const double x = points[i].x, y = points[i].y;
-        const MapPoint p = to_dem ? to_dem->apply(points[i]) : points[i];
+        MapPoint p = points[i];
+        if (to_dem) {
+            try {
+                p = to_dem->apply(points[i]);
+            } catch (const InputError&) {
+                char buf[160];
+                std::snprintf(buf, sizeof buf,
+                              " %.10g,%.10g cannot be transformed from --crs into the DEM's CRS", x,
+                              y);
+                throw InputError(what[i] + buf);
+            }
+        }
         if (!g.containsMap(p.x, p.y)) {
             char buf[256];
             std::snprintf(buf, sizeof buf,
@@ -490,22 +509,21 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
 PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const std::string& role,
                           const std::string& unique_because) {
     PlacedSites placed;
-    placed.rows = readSitesCsv(path);
+    placed.rows = readSitesCsv(path, role);
     std::map<std::string, int> line_of_name;
     std::vector<std::string> what, names;
     std::vector<MapPoint> given;
     std::vector<double> heights;
     for (const Site& site : placed.rows) {
         const std::string where = path + ", line " + std::to_string(site.line);
-        if (!unique_because.empty()) {
-            auto [it, fresh] = line_of_name.emplace(site.name, site.line);
-            if (!fresh) {
-                throw InputError(where + ": the " + role + " name '" + site.name +
-                                 "' is already used on line " + std::to_string(it->second) + "; " +
-                                 unique_because);
-            }
+        // Names are unique in every command: they name the rows in summaries and outputs.
+        auto [it, fresh] = line_of_name.emplace(site.name, site.line);
+        if (!fresh) {
+            throw InputError(where + ": the " + role + " name '" + echoText(site.name) +
+                             "' is already used on line " + std::to_string(it->second) + "; " +
+                             (unique_because.empty() ? "names must be unique" : unique_because));
         }
-        what.push_back(where + ": " + role + " '" + site.name + "' at");
+        what.push_back(where + ": " + role + " '" + echoText(site.name) + "' at");
         names.push_back(site.name);
         given.push_back({site.x, site.y});
         heights.push_back(site.height_m.value_or(ctx.observer_height_m));

@@ -183,8 +183,8 @@ struct PlacedSites {
 /// requireData for every placed row, in order.
 void requireData(const RunContext& ctx, const PlacedSites& placed);
 /// Reads a sites CSV (docs/design.md) and places every row on the DEM. `role` names a row in
-/// messages ("site", "station", "candidate"). With `unique_because` non-empty, a repeated name is
-/// bad input naming both lines and the reason ("the matrix needs unique names").
+/// messages ("site", "station", "candidate"). A repeated name is bad input in every command,
+/// naming both lines and the reason (`unique_because`, e.g. "the matrix needs unique names").
 PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const std::string& role,
                           const std::string& unique_because = "");
 /// Converts a point from --crs into the DEM's CRS.

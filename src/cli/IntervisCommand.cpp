@@ -232,7 +232,8 @@ Command addIntervisCommand(CLI::App& root) {
     app->get_option("--observer-height")
         ->description("height of a station above the ground when its CSV row gives none, metres");
     app->add_option("--stations", state->stations,
-                    "CSV of stations: name,x,y and optional height (metres above ground)")
+                    "CSV of stations (RFC 4180, UTF-8): name,x,y and optional height (metres "
+                    "above ground); names unique")
         ->type_name("FILE")
         ->required()
         ->group("Stations");

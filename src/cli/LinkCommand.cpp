@@ -8,6 +8,7 @@
 
 #include "Commands.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/link/PathProfile.hpp"
@@ -255,11 +256,12 @@ void runLink(const LinkState& s) {
     double frequency_mhz = std::numeric_limits<double>::quiet_NaN();
     if (!trim(s.frequency_mhz).empty()) {
         const std::string t = trim(s.frequency_mhz);
-        char* end = nullptr;
-        frequency_mhz = std::strtod(t.c_str(), &end);
-        if (*end != '\0' || !(frequency_mhz > 0) || !std::isfinite(frequency_mhz)) {
-            throw UsageError("--frequency-mhz: '" + t + "' is not a positive frequency in MHz");
+        const auto f = parseDecimal(t);
+        if (!f || !(*f > 0)) {
+            throw UsageError("--frequency-mhz: '" + echoText(t) +
+                             "' is not a positive decimal frequency in MHz");
         }
+        frequency_mhz = *f;
     }
     const MapPoint from_in = parsePoint(s.from, "--from");
     const MapPoint to_in = parsePoint(s.to, "--to");

@@ -104,11 +104,11 @@ void runSelect(const SelectState& s) {
     double coverage = std::numeric_limits<double>::quiet_NaN();
     if (has_coverage) {
         const std::string t = trim(s.coverage);
-        char* end = nullptr;
-        coverage = std::strtod(t.c_str(), &end);
-        if (*end != '\0' || !(coverage > 0 && coverage <= 100)) {
-            throw UsageError("--coverage: '" + t + "' is not a percentage in (0, 100]");
+        const auto p = parseDecimal(t);
+        if (!p || !(*p > 0 && *p <= 100)) {
+            throw UsageError("--coverage: '" + echoText(t) + "' is not a percentage in (0, 100]");
         }
+        coverage = *p;
     }
     std::vector<std::string> inputs = {s.candidates};
     if (!s.weight.empty())
@@ -274,7 +274,8 @@ Command addSelectCommand(CLI::App& root) {
             "height of a candidate above the ground when its CSV row gives none, "
             "metres");
     app->add_option("--candidates", state->candidates,
-                    "CSV of candidate sites: name,x,y and optional height (metres above ground)")
+                    "CSV of candidate sites (RFC 4180, UTF-8): name,x,y and optional height "
+                    "(metres above ground); names unique")
         ->type_name("FILE")
         ->required()
         ->group("Choice");

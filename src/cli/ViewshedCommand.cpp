@@ -320,8 +320,9 @@ Command addViewshedCommand(CLI::App& root) {
         ->capture_default_str()
         ->group("Observers");
     auto* sites = app->add_option("--sites", state->sites,
-                                  "CSV of sites: name,x,y and optional height (metres above "
-                                  "ground; overrides --observer-height)")
+                                  "CSV of sites (RFC 4180, UTF-8): name,x,y and optional height "
+                                  "(metres above ground; overrides --observer-height); names "
+                                  "unique")
                       ->type_name("FILE")
                       ->group("Observers");
     observer->excludes(sites);

@@ -6,6 +6,7 @@
 #include <cstdlib>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Text.hpp"
 
 namespace lookfar {
 
@@ -92,30 +93,43 @@ std::optional<LinearUnit> parseLinearUnit(const std::string& text) {
     return std::nullopt;
 }
 
-double parseLengthMetres(const std::string& text, const std::string& what) {
-    std::string t = trim(text);
-    const char* begin = t.c_str();
-    char* end = nullptr;
-    double value = std::strtod(begin, &end);
-    if (end == begin) {
-        throw UsageError(what + ": '" + text + "' is not a length (write e.g. 30, 30m or 100ft)");
+std::optional<double> lengthMetres(const std::string& text, std::string* why) {
+    const std::string t = trim(text);
+    const std::size_t n = decimalPrefixLength(t);
+    if (n == 0) {
+        *why = "is not a length (write e.g. 30, 30m or 100ft)";
+        return std::nullopt;
     }
-    std::string suffix = trim(std::string(end));
+    std::string suffix = trim(t.substr(n));
+    std::transform(suffix.begin(), suffix.end(), suffix.begin(),
+                   [](unsigned char c) { return std::tolower(c); });
     double factor = 1.0;
-    if (suffix == "km") {
+    if (suffix == "km" || suffix == "kilometre" || suffix == "kilometres" ||
+        suffix == "kilometer" || suffix == "kilometers") {
         factor = 1000.0;
     } else if (!suffix.empty()) {
-        auto unit = parseLinearUnit(suffix);
+        const auto unit = parseLinearUnit(suffix);
         if (!unit) {
-            throw UsageError(what + ": unknown unit '" + suffix + "' in '" + text +
-                             "' (use m, km, ft or us-ft)");
+            *why =
+                "has an unknown unit '" + echoText(t.substr(n), 20) + "' (use m, km, ft or us-ft)";
+            return std::nullopt;
         }
         factor = unit->metres;
     }
-    if (!std::isfinite(value)) {
-        throw UsageError(what + ": '" + text + "' is not a finite length");
+    const auto value = parseDecimal(t.substr(0, n));
+    if (!value || !std::isfinite(*value * factor)) {
+        *why = "is not a finite length";
+        return std::nullopt;
     }
-    return value * factor;
+    return *value * factor;
+}
+
+double parseLengthMetres(const std::string& text, const std::string& what) {
+    std::string why;
+    const auto metres = lengthMetres(text, &why);
+    if (!metres)
+        throw UsageError(what + ": '" + echoText(text) + "' " + why);
+    return *metres;
 }
 
 }  // namespace lookfar

@@ -4,29 +4,40 @@
 #include <proj.h>
 
 #include <cmath>
+#include <cstdio>
 #include <cstdlib>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
 
 namespace lookfar {
 
 MapPoint parsePoint(const std::string& text, const std::string& what) {
-    auto comma = text.find(',');
-    if (comma == std::string::npos) {
-        throw UsageError(what + ": '" + text + "' is not a point; write X,Y (e.g. 431250,5612400)");
+    const auto comma = text.find(',');
+    if (comma == std::string::npos || text.find(',', comma + 1) != std::string::npos) {
+        throw UsageError(what + ": '" + echoText(text) +
+                         "' is not a point; write X,Y (e.g. 431250,5612400)");
     }
     auto number = [&](const std::string& part) {
-        std::string t = trim(part);
-        char* end = nullptr;
-        double v = std::strtod(t.c_str(), &end);
-        if (t.empty() || *end != '\0' || !std::isfinite(v)) {
-            throw UsageError(what + ": '" + text + "' is not a point; '" + t +
-                             "' is not a finite number");
+        const std::string t = trim(part);
+        const auto v = parseDecimal(t);
+        if (!v) {
+            throw UsageError(what + ": '" + echoText(text) + "' is not a point; '" + echoText(t) +
+                             "' is not a finite decimal number");
         }
-        return v;
+        return *v;
     };
     return {number(text.substr(0, comma)), number(text.substr(comma + 1))};
+}
+
+std::string crsAsPROJUnderstandsIt(const std::string& text) {
+    // A PROJ string describes an operation unless it says +type=crs; users write it without.
+    const bool proj_string =
+        trim(text).rfind('+', 0) == 0 || text.find("+proj=") != std::string::npos;
+    if (proj_string && text.find("+type=crs") == std::string::npos)
+        return text + " +type=crs";
+    return text;
 }
 
 namespace {
@@ -39,7 +50,7 @@ struct Ctx {
 
 PJ* createCrs(PJ_CONTEXT* ctx, const std::string& text) {
     proj_log_level(ctx, PJ_LOG_NONE);
-    PJ* pj = proj_create(ctx, text.c_str());
+    PJ* pj = proj_create(ctx, crsAsPROJUnderstandsIt(text).c_str());
     if (!pj)
         return nullptr;
     PJ_TYPE t = proj_get_type(pj);
@@ -69,7 +80,8 @@ CoordinateTransform::CoordinateTransform(const std::string& from, const std::str
     PJ_CONTEXT* c = impl_->ctx.ctx;
     PJ* src = createCrs(c, from);
     if (!src)
-        throw UsageError("--crs: '" + from + "' is not a coordinate reference system PROJ knows");
+        throw UsageError("--crs: '" + echoText(from) +
+                         "' is not a coordinate reference system PROJ knows");
     PJ* dst = createCrs(c, to);
     if (!dst) {
         proj_destroy(src);
@@ -80,11 +92,11 @@ CoordinateTransform::CoordinateTransform(const std::string& from, const std::str
     proj_destroy(src);
     proj_destroy(dst);
     if (!op)
-        throw InputError("no coordinate operation from '" + from + "' to the DEM's CRS");
+        throw InputError("no coordinate operation from '" + echoText(from) + "' to the DEM's CRS");
     impl_->pj = proj_normalize_for_visualization(c, op);
     proj_destroy(op);
     if (!impl_->pj)
-        throw InputError("no coordinate operation from '" + from + "' to the DEM's CRS");
+        throw InputError("no coordinate operation from '" + echoText(from) + "' to the DEM's CRS");
 }
 
 CoordinateTransform::~CoordinateTransform() = default;
@@ -93,8 +105,9 @@ MapPoint CoordinateTransform::apply(const MapPoint& p) const {
     PJ_COORD in = proj_coord(p.x, p.y, 0, 0);
     PJ_COORD out = proj_trans(impl_->pj, PJ_FWD, in);
     if (!std::isfinite(out.xy.x) || !std::isfinite(out.xy.y) || out.xy.x == HUGE_VAL) {
-        throw InputError("the point " + std::to_string(p.x) + "," + std::to_string(p.y) +
-                         " cannot be transformed into the DEM's CRS");
+        char buf[128];
+        std::snprintf(buf, sizeof buf, "the point %.10g,%.10g cannot be transformed", p.x, p.y);
+        throw InputError(buf);
     }
     return {out.xy.x, out.xy.y};
 }
@@ -134,11 +147,11 @@ Ellipsoid ellipsoidOfCrs(const std::string& crs) {
     Ctx ctx;
     PJ* pj = createCrs(ctx.ctx, crs);
     if (!pj)
-        throw InputError("'" + crs + "' is not a coordinate reference system PROJ knows");
+        throw InputError("'" + echoText(crs) + "' is not a coordinate reference system PROJ knows");
     PJ* ell = proj_get_ellipsoid(ctx.ctx, pj);
     proj_destroy(pj);
     if (!ell)
-        throw InputError("the CRS '" + crs + "' has no ellipsoid");
+        throw InputError("the CRS '" + echoText(crs) + "' has no ellipsoid");
     double a = 0, b = 0, inv_f = 0;
     int computed = 0;
     proj_ellipsoid_get_parameters(ctx.ctx, ell, &a, &b, &computed, &inv_f);
@@ -161,7 +174,8 @@ void validateCrs(const std::string& crs, const std::string& what) {
     Ctx ctx;
     PJ* pj = createCrs(ctx.ctx, crs);
     if (!pj)
-        throw UsageError(what + ": '" + crs + "' is not a coordinate reference system PROJ knows");
+        throw UsageError(what + ": '" + echoText(crs) +
+                         "' is not a coordinate reference system PROJ knows");
     proj_destroy(pj);
 }
 

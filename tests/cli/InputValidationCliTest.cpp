@@ -221,3 +221,81 @@ TEST(InputValidationCliTest, MissingOrUnknownCommandIsOurSentence) {
               std::string::npos)
         << unknown.err;
 }
+
+// ----- items 9, 17a, 17b: one CSV reader, numbers, CRS strings ---------------------------------
+
+TEST(InputValidationCliTest, DuplicateNamesAreRefusedTheSameWayByEveryCommand) {
+    ScratchDir in, out;
+    const std::string csv = writeText(
+        in, "dup.csv", "name,x,y\nMast,431500,5588500\nHill,431000,5588000\nMast,431600,5588500\n");
+    const std::vector<std::string> want = {"dup.csv, line 4", "'Mast' is already used on line 2"};
+    expectRefused({"viewshed", kCone, "--sites", csv, "-o", out.file("c.tif"), "--quiet"}, 3, want,
+                  out);
+    expectRefused({"intervis", kCone, "--stations", csv, "-o", out.file("m.csv"), "--quiet"}, 3,
+                  want, out);
+    expectRefused(
+        {"select", kCone, "--candidates", csv, "--count", "1", "-o", out.file("c.tif"), "--quiet"},
+        3, want, out);
+}
+
+TEST(InputValidationCliTest, ShortRowAndRepeatedColumnAreBadInputNamingTheLine) {
+    ScratchDir in, out;
+    const std::string short_row =
+        writeText(in, "short.csv", "name,x,y,height\nA,431500,5588500,10\nB,431600,5588500\n");
+    expectRefused({"viewshed", kCone, "--sites", short_row, "-o", out.file("c.tif"), "--quiet"}, 3,
+                  {"short.csv, line 3: 3 fields where the header has 4"}, out);
+    const std::string twice = writeText(in, "twice.csv", "name,x,y,x\nA,431500,5588500,1\n");
+    expectRefused({"intervis", kCone, "--stations", twice, "-o", out.file("m.csv"), "--quiet"}, 3,
+                  {"twice.csv, line 1: the column 'x' is named twice"}, out);
+}
+
+TEST(InputValidationCliTest, OneHeightCapForTheOptionAndTheCsv) {
+    ScratchDir in, out;
+    expectRefused({"viewshed", kCone, "--observer", "431500,5588500", "--observer-height",
+                   "100.5km", "-o", out.file("v.tif"), "--quiet"},
+                  2, {"--observer-height", "over 100 km"}, out);
+    const std::string csv =
+        writeText(in, "tall.csv", "name,x,y,height\nA,431500,5588500,100.5KM\n");
+    expectRefused({"viewshed", kCone, "--sites", csv, "-o", out.file("c.tif"), "--quiet"}, 3,
+                  {"tall.csv, line 2: height '100.5KM' is over 100 km"}, out);
+}
+
+TEST(InputValidationCliTest, BlankReachIsRefusedNotUnlimited) {
+    ScratchDir out;
+    expectRefused({"viewshed", kCone, "--observer", "431500,5588500", "--reach", " ", "-o",
+                   out.file("v.tif"), "--quiet"},
+                  2, {"--reach", "blank"}, out);
+}
+
+// PROJ reads "+proj=… +type=crs" as a CRS and the same string without +type=crs as a coordinate
+// operation (PROJ documentation, "PROJ strings", the type=crs parameter); lookfar appends it.
+TEST(InputValidationCliTest, ProjStringIsAcceptedAsUsersWriteIt) {
+    const std::vector<std::string> base = {"viewshed",       kCone,    "--observer",
+                                           "431520,5588500", "--json", "--quiet"};
+    ScratchDir a, b;
+    auto plain = base;
+    plain.insert(plain.end(), {"-o", a.file("v.tif")});
+    auto with_crs = base;
+    with_crs.insert(with_crs.end(),
+                    {"-o", b.file("v.tif"), "--crs", "+proj=utm +zone=30 +datum=WGS84"});
+    const CliResult r0 = runLookfar(plain), r1 = runLookfar(with_crs);
+    ASSERT_EQ(r0.exit_code, 0) << r0.err;
+    ASSERT_EQ(r1.exit_code, 0) << r1.err;
+    const auto j0 = nlohmann::json::parse(r0.out)["observers"][0];
+    const auto j1 = nlohmann::json::parse(r1.out)["observers"][0];
+    EXPECT_EQ(j0["col"], j1["col"]);
+    EXPECT_EQ(j0["row"], j1["row"]);
+    EXPECT_EQ(j0["visible_cells"], j1["visible_cells"]);
+}
+
+TEST(InputValidationCliTest, PointThatCannotBeTransformedNamesTheOptionOrTheLine) {
+    ScratchDir in, out;
+    // Latitude 95° is no place on the Earth: PROJ cannot project it.
+    expectRefused({"viewshed", kCone, "--crs", "EPSG:4326", "--observer", "-3.9,95", "-o",
+                   out.file("v.tif"), "--quiet"},
+                  3, {"--observer -3.9,95 cannot be transformed"}, out);
+    const std::string csv = writeText(in, "ll.csv", "name,x,y\nPole,-3.9,95\n");
+    expectRefused({"viewshed", kCone, "--crs", "EPSG:4326", "--sites", csv, "-o", out.file("c.tif"),
+                   "--quiet"},
+                  3, {"ll.csv, line 2: site 'Pole' at -3.9,95 cannot be transformed"}, out);
+}

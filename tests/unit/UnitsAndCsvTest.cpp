@@ -8,6 +8,8 @@
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/SitesCsv.hpp"
 
+#include <string>
+
 using namespace lookfar;
 using lookfar::testing::ScratchDir;
 
@@ -71,4 +73,124 @@ TEST(SitesCsvTest, ErrorsNameFileLineAndValue) {
     EXPECT_THROW(readSitesCsv(writeCsv(dir, "name,x,y,height\nA,1,2,-5\n")), InputError);
     EXPECT_THROW(readSitesCsv(writeCsv(dir, "name,x,y\n\"A,1,2\n")), InputError);
     EXPECT_THROW(readSitesCsv(dir.file("missing.csv")), InputError);
+}
+
+// ----- issue 12 items 9, 17a: finite decimal numbers, units in any case, one CSV reader ---------
+
+// Numbers are decimals as written in docs/design.md; strtod would also take hex (C99 7.20.1.3),
+// inf and nan, which lookfar refuses.
+TEST(UnitsTest, OnlyFiniteDecimalNumbersAreNumbers) {
+    EXPECT_EQ(parseDecimal("12"), 12.0);
+    EXPECT_EQ(parseDecimal("-3.5"), -3.5);
+    EXPECT_EQ(parseDecimal("+2"), 2.0);
+    EXPECT_EQ(parseDecimal(".5"), 0.5);
+    EXPECT_EQ(parseDecimal("5."), 5.0);
+    EXPECT_EQ(parseDecimal("1e3"), 1000.0);
+    EXPECT_EQ(parseDecimal("2.5E-1"), 0.25);
+    for (const std::string bad : {"0x10", "0x1p10", "inf", "-infinity", "nan", "1e400", " 1", "1 ",
+                                  "", ".", "e5", "1,5", "1e", "--1", "1.2.3"}) {
+        EXPECT_FALSE(parseDecimal(bad).has_value()) << bad;
+    }
+    EXPECT_FALSE(parseDecimal(std::string("425087.5") + '\0' + "999").has_value());
+    EXPECT_EQ(parseWholeNumber("-1"), -1);
+    EXPECT_FALSE(parseWholeNumber("1.0").has_value());
+    EXPECT_FALSE(parseWholeNumber("99999999999999999999").has_value());
+}
+
+TEST(UnitsTest, UnitSuffixesAreCaseInsensitiveForEveryUnit) {
+    EXPECT_DOUBLE_EQ(parseLengthMetres("10KM", "--x"), 10000.0);
+    EXPECT_DOUBLE_EQ(parseLengthMetres("10Km", "--x"), 10000.0);
+    EXPECT_DOUBLE_EQ(parseLengthMetres("10FT", "--x"), 3.048);
+    EXPECT_DOUBLE_EQ(parseLengthMetres("5M", "--x"), 5.0);
+    EXPECT_NEAR(parseLengthMetres("3937US-FT", "--x"), 1200.0, 1e-9);
+    EXPECT_THROW(parseLengthMetres("0x10", "--x"), UsageError);
+    EXPECT_THROW(parseLengthMetres("1 0m", "--x"), UsageError);
+}
+
+TEST(UnitsTest, LengthThatOverflowsIsRefusedNamingTheOption) {
+    try {
+        parseLengthMetres("1e308km", "--reach");
+        FAIL() << "no error";
+    } catch (const UsageError& e) {
+        EXPECT_NE(std::string(e.what()).find("--reach: '1e308km' is not a finite length"),
+                  std::string::npos)
+            << e.what();
+    }
+}
+
+namespace {
+/// The message of the InputError that reading `text` as a sites CSV throws ("" if none).
+std::string csvError(const std::string& text) {
+    try {
+        parseSitesCsv(text, "s.csv");
+    } catch (const InputError& e) {
+        return e.what();
+    }
+    return "";
+}
+}  // namespace
+
+// RFC 4180 section 2 rule 6: fields holding line breaks, quotes or commas are quoted; rule 7: a
+// quote inside is doubled. The row after a two-line record starts on line 4.
+TEST(SitesCsvTest, QuotedFieldMayHoldALineBreakAsRfc4180Allows) {
+    const auto sites =
+        parseSitesCsv("name,x,y\r\n\"North\r\nFell, \"\"old\"\"\",1,2\r\nB,3,4\r\n", "s.csv");
+    ASSERT_EQ(sites.size(), 2u);
+    EXPECT_EQ(sites[0].name, "North\r\nFell, \"old\"");
+    EXPECT_EQ(sites[0].line, 2);
+    EXPECT_EQ(sites[1].line, 4);
+    EXPECT_EQ(csvError("name,x,y\n\"A,1,2\nB,3,4\n"),
+              "s.csv, line 2: a quoted field opened here is not closed");
+}
+
+// RFC 4180 section 2 rule 4: each line should contain the same number of fields.
+TEST(SitesCsvTest, ShortOrLongRowIsMalformedNamingTheLine) {
+    EXPECT_NE(csvError("name,x,y,height\nA,1,2,3\nB,1,2\n")
+                  .find("s.csv, line 3: 3 fields where "
+                        "the header has 4"),
+              std::string::npos);
+    EXPECT_NE(csvError("name,x,y\nA,1,2,3\n").find("line 2: 4 fields where the header has 3"),
+              std::string::npos);
+    // An empty height is a field: the row is complete and takes --observer-height.
+    EXPECT_FALSE(parseSitesCsv("name,x,y,height\nA,1,2,\n", "s.csv")[0].height_m.has_value());
+}
+
+TEST(SitesCsvTest, ColumnNamedTwiceIsRefused) {
+    EXPECT_EQ(csvError("name,x,y,X\nA,1,2,3\n"),
+              "s.csv, line 1: the column 'x' is named twice (columns 2 and 4)");
+}
+
+TEST(SitesCsvTest, NumbersAreFiniteDecimalsAndHeightsShareTheOptionCap) {
+    EXPECT_NE(csvError("name,x,y\nA,0x10,2\n").find("x '0x10' is not a finite decimal number"),
+              std::string::npos);
+    EXPECT_NE(csvError("name,x,y\nA,1,nan\n").find("y 'nan' is not"), std::string::npos);
+    EXPECT_NE(csvError("name,x,y,height\nA,1,2,0x1p10\n").find("line 2: height '0x1p10'"),
+              std::string::npos);
+    const std::string nul = std::string("name,x,y\nA,425087.5") + '\0' + "999,2\n";
+    EXPECT_NE(csvError(nul).find("line 2: a NUL byte at byte 11"), std::string::npos);
+    // The cap of --observer-height (kMaxHeightAboveGroundM, 100 km) holds in the CSV too.
+    EXPECT_DOUBLE_EQ(*parseSitesCsv("name,x,y,height\nA,1,2,100km\n", "s.csv")[0].height_m, 1e5);
+    EXPECT_NE(csvError("name,x,y,height\nA,1,2,1e300\n").find("over 100 km above the ground"),
+              std::string::npos);
+    EXPECT_NE(csvError("name,x,y,height\nA,1,2,1e308km\n").find("is not a finite length"),
+              std::string::npos);
+}
+
+TEST(SitesCsvTest, StrayQuotesAreRefusedNotGuessed) {
+    EXPECT_NE(csvError("name,x,y\nO\"Hara,1,2\n").find("line 2: a quote inside the unquoted field"),
+              std::string::npos);
+    EXPECT_NE(csvError("name,x,y\n\"A\"B,1,2\n").find("line 2: text after the closing quote"),
+              std::string::npos);
+    EXPECT_EQ(parseSitesCsv("name,x,y\n \"A\" ,1,2\n", "s.csv")[0].name, "A");
+}
+
+TEST(SitesCsvTest, EchoedTextIsCutAndEscaped) {
+    const std::string huge = "name,x,y," + std::string(5'000'000, 'h') + "\x1B[2J\nA,1,2\n";
+    const std::string m = csvError("label,x,y," + std::string(5000, 'h') + "\nA,1,2\n");
+    EXPECT_LT(m.size(), 300u) << m;
+    EXPECT_NE(m.find("…"), std::string::npos) << m;
+    const std::string esc = csvError("name,x,y\nA,1\x1B[2J,2\n");
+    EXPECT_NE(esc.find("'1\\x1B[2J'"), std::string::npos) << esc;
+    EXPECT_EQ(esc.find('\x1B'), std::string::npos) << esc;
+    EXPECT_NE(csvError(huge).find("line 2: 3 fields where the header has 4"), std::string::npos);
 }

@@ -22,8 +22,18 @@ struct LinearUnit {
 /// "international foot", "us-ft", "US survey foot", "ftUS"); nullopt for anything else.
 std::optional<LinearUnit> parseLinearUnit(const std::string& text);
 
-/// Parses a length with an optional unit suffix (m, km, ft, us-ft) into metres.
-/// Throws UsageError naming `what` (e.g. "--observer-height") when malformed or non-finite.
+/// The highest height above the ground lookfar takes, on the command line or in a CSV.
+inline constexpr double kMaxHeightAboveGroundM = 1e5;
+inline constexpr const char* kMaxHeightAboveGroundText = "100 km";
+
+/// A length: a finite decimal number (parseDecimal) and an optional unit suffix, in any case:
+/// m, km, ft, us-ft and the names parseLinearUnit knows (metre, feet, …), spaces allowed
+/// between. Returns metres, or nullopt with the reason in `why` (a phrase that follows the
+/// quoted text: "is not a length (write e.g. 30, 30m or 100ft)").
+std::optional<double> lengthMetres(const std::string& text, std::string* why);
+
+/// lengthMetres for an option: throws UsageError naming `what` (e.g. "--observer-height") and
+/// the text (cut and escaped) when malformed or non-finite.
 double parseLengthMetres(const std::string& text, const std::string& what);
 
 /// Parses a finite decimal number, the whole of `text`: an optional sign, digits with an optional

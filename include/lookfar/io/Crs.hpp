@@ -13,8 +13,14 @@ struct MapPoint {
     double y = 0;
 };
 
-/// Parses "X,Y" (two finite numbers); throws UsageError naming `what`.
+/// Parses "X,Y" (two finite decimal numbers, spaces allowed around each); throws UsageError
+/// naming `what` and the text (cut and escaped).
 MapPoint parsePoint(const std::string& text, const std::string& what);
+
+/// The text PROJ is given for a CRS the user wrote: a PROJ string ("+proj=utm +zone=30
+/// +datum=WGS84") gets "+type=crs" appended when it lacks it, so that PROJ reads it as a CRS
+/// rather than an operation; anything else (EPSG:4326, WKT) is unchanged.
+std::string crsAsPROJUnderstandsIt(const std::string& text);
 
 /// A transform from one CRS to another, x/longitude first on both sides.
 class CoordinateTransform {

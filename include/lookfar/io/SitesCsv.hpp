@@ -1,7 +1,13 @@
 #pragma once
-// The CSV of sites, stations and candidates (docs/design.md): a header row with columns
-// name,x,y and an optional height (metres above ground; suffixes m, ft, us-ft accepted),
-// comma-separated, fields may be quoted ("a, b" and "" inside quotes), UTF-8.
+// The CSV of sites, stations and candidates (DESIGN.md), read the same way by every command:
+// RFC 4180 (comma-separated; a field may be quoted, and a quoted field may hold commas, doubled
+// quotes and line breaks), UTF-8 with an optional byte-order mark, CRLF or LF line ends. The
+// header row names the columns name,x,y and an optional height (metres above ground; a unit
+// suffix m, km, ft or us-ft allowed, in any case); other columns are ignored; a column named
+// twice is refused. Every row has as many fields as the header. x and y are finite decimal
+// numbers (no hex, inf or nan); a height is at most kMaxHeightAboveGroundM. Blank lines are
+// skipped. Each refusal is an InputError naming the file, the line (header = line 1) and the
+// value, cut and escaped (echoText).
 #include <optional>
 #include <string>
 #include <vector>
@@ -13,19 +19,30 @@ struct Site {
     double x = 0;
     double y = 0;
     std::optional<double> height_m;  ///< observer height for this site, if given
-    int line = 0;                    ///< line of the file (header = line 1)
+    int line = 0;                    ///< line of the file where the row starts (header = line 1)
 };
 
-/// Reads `path`. Throws InputError naming the file, the line and the offending value for a
-/// missing file, missing columns, an empty file, a malformed number or a non-finite or
-/// negative height.
-std::vector<Site> readSitesCsv(const std::string& path);
+/// One record of a CSV file: its fields and the line it starts on.
+struct CsvRecord {
+    std::vector<std::string> fields;
+    int line = 0;
+};
 
-/// Splits one CSV record (RFC 4180 quoting); throws InputError on an unterminated quote.
-std::vector<std::string> splitCsvRecord(const std::string& line, const std::string& path,
-                                        int line_number);
+/// Reads `path`. `role` names a row in messages ("site", "station", "candidate"). Throws
+/// InputError for a missing file and for everything the rules above refuse.
+std::vector<Site> readSitesCsv(const std::string& path, const std::string& role = "site");
 
-/// Quotes a field for CSV output when it holds a comma, quote or newline.
+/// The same rules on the text of a file; `path` and `role` are only used in messages.
+std::vector<Site> parseSitesCsv(const std::string& text, const std::string& path,
+                                const std::string& role = "site");
+
+/// Splits the text of a CSV file into records (RFC 4180); `path` names the file in messages.
+/// Refuses bytes that are not UTF-8, NUL bytes, an unclosed quoted field, and a quote inside an
+/// unquoted field or text after a closing quote. A leading byte-order mark is dropped; records
+/// that are blank (only spaces and tabs, unquoted) are skipped.
+std::vector<CsvRecord> parseCsvRecords(const std::string& text, const std::string& path);
+
+/// Quotes a field for CSV output when it holds a comma, quote or line break.
 std::string csvField(const std::string& value);
 
 }  // namespace lookfar
