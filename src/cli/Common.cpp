@@ -95,6 +95,16 @@ void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
                         "GDAL creation option KEY=VALUE for output GeoTIFFs (repeatable; default "
                         "tiled, DEFLATE, predictor, compressed on every processor)")
             ->group("Output");
+        o.extent = "dem";
+        app->add_option("--extent", o.extent,
+                        "grid of the output rasters: dem (the DEM's whole grid; only the blocks "
+                        "within --reach are written, the rest read as no data) or reach (only the "
+                        "window of cells within --reach, on the DEM's grid lines; the whole DEM "
+                        "without --reach)")
+            ->capture_default_str()
+            ->type_name("dem|reach")
+            ->check(oneOfCheck({"dem", "reach"}))
+            ->group("Output");
     }
 }
 
@@ -135,9 +145,10 @@ CLI::Validator refractionCheck() {
                 return "";
             std::string message = echoText(text) + " is outside -1 <= k < 1";
             if (*k > 1.0 && *k <= 4.0) {
-                message += "; if it is the K-factor (effective over true Earth radius), k = 1 - 1/K "
-                           "= " +
-                           printfNumber("%.4g", 1.0 - 1.0 / *k) + " (a 4/3 Earth is k = 0.25)";
+                message +=
+                    "; if it is the K-factor (effective over true Earth radius), k = 1 - 1/K "
+                    "= " +
+                    printfNumber("%.4g", 1.0 - 1.0 / *k) + " (a 4/3 Earth is k = 0.25)";
             } else if (*k >= 1.0) {
                 message += " (k >= 1 bends sightlines as much as the Earth curves: ducting)";
             }
@@ -291,8 +302,7 @@ double parseEarthRadiusOption(const std::string& text, const std::string& earth_
     }
     const double r = parseLengthMetres(text, "--earth-radius");
     if (!(r >= 1e3 && r <= 1e8)) {
-        throw UsageError("--earth-radius: " + echoText(text) +
-                         " is outside 1 km to 100 000 km");
+        throw UsageError("--earth-radius: " + echoText(text) + " is outside 1 km to 100 000 km");
     }
     return r;
 }
@@ -410,6 +420,26 @@ void readDemWindow(RunContext& ctx, const CellWindow& window) {
     read.win_height = window.height;
     ctx.dem = readDem(ctx.options.dem, read);
     ctx.window = window;
+    if (!ctx.options.extent.empty()) {
+        ctx.run.extra["EXTENT"] = ctx.options.extent;
+        ctx.run.extra["WINDOW"] = std::to_string(window.col0) + "," + std::to_string(window.row0) +
+                                  "," + std::to_string(window.width) + "," +
+                                  std::to_string(window.height);
+    }
+}
+
+bool reachExtent(const RunContext& ctx) {
+    return ctx.options.extent == "reach";
+}
+
+nlohmann::json extentJson(const RunContext& ctx) {
+    const CellWindow& w = ctx.window;
+    const bool reach = reachExtent(ctx);
+    return {
+        {"mode", ctx.options.extent},
+        {"window", {{"col", w.col0}, {"row", w.row0}, {"width", w.width}, {"height", w.height}}},
+        {"raster_width", reach ? w.width : ctx.grid.width()},
+        {"raster_height", reach ? w.height : ctx.grid.height()}};
 }
 
 Observer inWindow(const RunContext& ctx, Observer o) {
@@ -537,12 +567,15 @@ RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType 
                       double nodata) {
     RasterSpec spec;
     spec.path = path;
-    spec.width = ctx.grid.width();
-    spec.height = ctx.grid.height();
+    // --extent reach: the window read, on the DEM's grid lines; dem: the whole grid, of which
+    // only the blocks the window touches are written (the others stay sparse: no data).
+    const GridGeometry& grid = reachExtent(ctx) ? ctx.dem.geometry : ctx.grid;
+    spec.width = grid.width();
+    spec.height = grid.height();
     spec.bands = bands;
     spec.type = type;
     spec.nodata = nodata;
-    spec.geotransform = ctx.grid.geotransform();
+    spec.geotransform = grid.geotransform();
     spec.crs_wkt = ctx.dem.crs.wkt;
     spec.metadata = rasterMetadata(ctx.run);
     spec.creation_options = ctx.options.creation_options;
@@ -552,12 +585,22 @@ RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType 
         threads_given = threads_given || strncasecmp(co.c_str(), "NUM_THREADS=", 12) == 0;
     if (ctx.options.threads > 0 && !threads_given)
         spec.creation_options.push_back("NUM_THREADS=" + std::to_string(ctx.options.threads));
+    const bool whole =
+        ctx.window.width == ctx.grid.width() && ctx.window.height == ctx.grid.height();
+    bool sparse_given = false;
+    for (const auto& co : spec.creation_options)
+        sparse_given = sparse_given || strncasecmp(co.c_str(), "SPARSE_OK=", 10) == 0;
+    if (!whole && !reachExtent(ctx) && !sparse_given)
+        spec.creation_options.push_back("SPARSE_OK=TRUE");
     return spec;
 }
 
 void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data) {
     const CellWindow& w = ctx.window;
-    writer.writeWindow(band, w.col0, w.row0, w.width, w.height, data, w.width);
+    if (reachExtent(ctx))
+        writer.writeWindow(band, 0, 0, w.width, w.height, data, w.width);
+    else
+        writer.writeWindow(band, w.col0, w.row0, w.width, w.height, data, w.width);
 }
 
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
@@ -596,6 +639,8 @@ void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& t
     summary = jsonSafe(summary);  // output paths are echoed as given, in any bytes
     double elapsed =
         std::chrono::duration<double>(std::chrono::steady_clock::now() - ctx.start).count();
+    if (!ctx.options.extent.empty())
+        summary["extent"] = extentJson(ctx);
     summary["elapsed_s"] = std::round(elapsed * 1000.0) / 1000.0;
     if (!ctx.options.summary.empty())
         writeTextFile(ctx.options.summary, summary.dump(2) + "\n");

@@ -62,6 +62,7 @@ struct CommonOptions {
     bool overwrite = false;
     std::vector<std::string> creation_options;
     std::string method = "fast";
+    std::string extent;  ///< --extent: "dem" or "reach"; empty for commands without rasters
 };
 
 /// Adds the DEM positional argument and the common options to `app`.
@@ -195,8 +196,12 @@ double latitudeOf(const RunContext& ctx, const MapPoint& p_dem);
 /// Raster spec for an output of the DEM's size, geotransform and CRS, with metadata.
 RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
                       double nodata);
+/// True when the output rasters cover the window read only (--extent reach).
+bool reachExtent(const RunContext& ctx);
+/// The summary's "extent": mode, window of DEM cells read, size of the output rasters.
+nlohmann::json extentJson(const RunContext& ctx);
 /// Writes `data`, a grid over the window read (ctx.window), into band `band` of an output raster
-/// made by outputSpec.
+/// made by outputSpec (in place on the DEM's grid, or the whole raster with --extent reach).
 void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data);
 /// Writes a one-band grid over the window read (uint8_t, uint16_t or float) atomically.
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
