@@ -40,6 +40,7 @@ double timeIt(F&& f);
 nlohmann::json benchViewshed(const BenchArgs& args);
 nlohmann::json benchHorizon(const BenchArgs& args);
 nlohmann::json benchIntervis(const BenchArgs& args);
+nlohmann::json benchScale(const BenchArgs& args);
 
 }  // namespace lookfar::bench
 

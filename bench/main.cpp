@@ -12,9 +12,12 @@
 int main(int argc, char** argv) {
     using namespace lookfar::bench;
     std::map<std::string, nlohmann::json (*)(const BenchArgs&)> benches = {
-        {"viewshed", benchViewshed}, {"horizon", benchHorizon}, {"intervis", benchIntervis}};
+        {"viewshed", benchViewshed},
+        {"horizon", benchHorizon},
+        {"intervis", benchIntervis},
+        {"scale", benchScale}};
     if (argc < 2 || !benches.count(argv[1])) {
-        std::cerr << "usage: lookfar_bench viewshed|horizon|intervis [--quick] [--out FILE] "
+        std::cerr << "usage: lookfar_bench viewshed|horizon|intervis|scale [--quick] [--out FILE] "
                      "[--cli PATH] [--work DIR]\n";
         return 2;
     }
