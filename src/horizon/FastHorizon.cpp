@@ -96,6 +96,7 @@
 
 #include "HorizonInternal.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Units.hpp"
 
 namespace lookfar::horizon_detail {
@@ -1422,9 +1423,10 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
         };
         // The near field of the first batch's tiles.
         acquireFor(std::min(d.jmin + batch_lines - 1, d.jmax));
-#pragma omp parallel for schedule(dynamic, 1)
-        for (int item = 0; item < static_cast<int>(fresh.size()); ++item)
-            tileWork(fresh[item], true);
+        ParallelForOptions loop;
+        loop.report = false;  // progress counts lines, below
+        parallelFor(static_cast<std::int64_t>(fresh.size()), progress,
+                    [&](std::int64_t item) { tileWork(fresh[item], true); }, loop);
         // One parallel loop a batch: the line groups of this batch, the tiles that the previous
         // batch completed (no line of this batch touches them) and the near field of the tiles
         // the next batch reaches first, so the threads meet once a batch and the tiles fill the
@@ -1441,17 +1443,19 @@ void fastScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator& acc,
             const int groups = more_lines ? static_cast<int>((j1 - j0) / kGroupLines + 1) : 0;
             const int n_ready = static_cast<int>(ready.size());
             const int n_fresh = static_cast<int>(fresh.size());
-#pragma omp parallel for schedule(dynamic, 1)
-            for (int item = 0; item < groups + n_ready + n_fresh; ++item) {
-                if (item < groups) {
-                    lines.run(j0 + static_cast<long>(item) * kGroupLines, j1,
-                              scratch[threadIndex()]);
-                } else if (item < groups + n_ready) {
-                    tileWork(ready[item - groups], false);
-                } else {
-                    tileWork(fresh[item - groups - n_ready], true);
-                }
-            }
+            parallelFor(
+                groups + n_ready + n_fresh, progress,
+                [&](std::int64_t item) {
+                    if (item < groups) {
+                        lines.run(j0 + static_cast<long>(item) * kGroupLines, j1,
+                                  scratch[threadIndex()]);
+                    } else if (item < groups + n_ready) {
+                        tileWork(ready[item - groups], false);
+                    } else {
+                        tileWork(fresh[item - groups - n_ready], true);
+                    }
+                },
+                loop);
             for (const TileInfo& info : ready) {
                 const int c0 = (info.id % tiles.ntx) * kTile, r0 = (info.id / tiles.ntx) * kTile;
                 const float* buf = tiles.ptr[info.id];

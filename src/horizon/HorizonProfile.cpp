@@ -6,6 +6,7 @@
 #include <limits>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Units.hpp"
 
 namespace lookfar {
@@ -34,11 +35,13 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
     p.step_deg = step_deg;
     const int n = static_cast<int>(std::ceil(360.0 / step_deg - 1e-9));
     p.directions.resize(n);
-#pragma omp parallel for schedule(dynamic, 16)
-    for (int i = 0; i < n; ++i) {
-        p.directions[i].azimuth_deg = i * step_deg;
-        p.directions[i].sample = scan.referenceAt(col, row, i * step_deg);
-    }
+    ParallelForOptions loop;
+    loop.chunk = 16;
+    loop.report = false;
+    parallelFor(n, silentProgress(), [&](std::int64_t i) {
+        p.directions[i].azimuth_deg = static_cast<double>(i) * step_deg;
+        p.directions[i].sample = scan.referenceAt(col, row, static_cast<double>(i) * step_deg);
+    }, loop);
 
     p.lowest_angle_deg = p.lowest_azimuth_deg = p.lowest_distance_m = nan;
     p.highest_angle_deg = p.highest_azimuth_deg = p.highest_distance_m = nan;

@@ -14,13 +14,13 @@
 // Output is streamed in strips of rows, one direction after another, so memory does not grow
 // with the number of directions.
 #include <algorithm>
-#include <atomic>
 #include <cmath>
 #include <limits>
 #include <vector>
 
 #include "HorizonInternal.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Units.hpp"
 
 namespace lookfar::horizon_detail {
@@ -49,11 +49,10 @@ void referenceScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator&
         for (int s = 0; s < strips; ++s) {
             const int row0 = s * kStripRows;
             const int rows = std::min(kStripRows, h - row0);
-            std::atomic<bool> stop{false};
-#pragma omp parallel for schedule(dynamic, 1)
-            for (int rr = 0; rr < rows; ++rr) {
-                if (stop.load(std::memory_order_relaxed))
-                    continue;
+            ParallelForOptions rows_loop;
+            rows_loop.report = false;  // progress counts strips, below
+            parallelFor(rows, progress, [&](std::int64_t ri) {
+                const int rr = static_cast<int>(ri);
                 const int r = row0 + rr;
                 for (int c = 0; c < w; ++c) {
                     const std::size_t k = static_cast<std::size_t>(rr) * w + c;
@@ -73,10 +72,7 @@ void referenceScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator&
                     distance[k] = static_cast<float>(ray.distance_m);
                     acc.add(dem.index(c, r), angle[k], ray.t);
                 }
-                if (progress.cancelled())
-                    stop = true;
-            }
-            throwIfCancelled(progress);
+            }, rows_loop);
             if (sink.wantsRectangles()) {
                 for (int c0 = 0; c0 < w; c0 += kRectCols) {
                     sink.rectangle(i, c0, row0, std::min(kRectCols, w - c0), rows, w,

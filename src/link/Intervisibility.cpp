@@ -3,10 +3,10 @@
 //   d_ij       fast distance between cell centres (LocalFrame of the observer), metres
 #include "lookfar/link/Intervisibility.hpp"
 
-#include <atomic>
 #include <cmath>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/viewshed/SightlineRule.hpp"
 
 namespace lookfar {
@@ -28,12 +28,8 @@ IntervisResult computeIntervisibility(const Grid<float>& dem, const GridGeometry
     out.stations = n;
     out.pairs.resize(static_cast<std::size_t>(n) * n);
     progress.begin("intervisibility", n);
-    std::atomic<std::int64_t> done{0};
-    std::atomic<bool> stop{false};
-#pragma omp parallel for schedule(dynamic, 1)
-    for (int i = 0; i < n; ++i) {
-        if (stop.load(std::memory_order_relaxed))
-            continue;
+    parallelFor(n, progress, [&](std::int64_t si) {
+        const int i = static_cast<int>(si);
         const SightlineRule rule(dem, geometry, earth, stations[i]);
         const LocalFrame& frame = rule.frame();
         PairVerdict* row = out.pairs.data() + static_cast<std::size_t>(i) * n;
@@ -50,14 +46,8 @@ IntervisResult computeIntervisibility(const Grid<float>& dem, const GridGeometry
             v.visible = sv.visible;
             v.margin_m = sv.margin_m;
         }
-        const std::int64_t d = ++done;
-        if (progress.cancelled())
-            stop = true;
-#pragma omp critical(lookfar_progress)
-        progress.advance(d);
-    }
+    });
     progress.end();
-    throwIfCancelled(progress);
     return out;
 }
 

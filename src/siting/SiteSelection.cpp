@@ -4,9 +4,7 @@
 //   v(c), V    cell value and total value over E
 #include "lookfar/siting/SiteSelection.hpp"
 
-#include <atomic>
 #include <cmath>
-#include <exception>
 #include <mutex>
 
 #ifdef _OPENMP
@@ -14,6 +12,7 @@
 #endif
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 
 namespace lookfar {
 
@@ -69,21 +68,16 @@ SiteSelectionResult selectSites(const Grid<float>& dem, const GridGeometry& geom
     vopt.method = options.method;
     vopt.crop_to_reach = true;
     progress.begin("candidate viewsheds", n);
-    std::atomic<std::int64_t> done{0};
-    std::atomic<bool> stop{false};
-    std::exception_ptr failure;
     std::mutex merge;
-    bool outer_parallel = true;
+    ParallelForOptions loop;
 #ifdef _OPENMP
     // Few candidates: let each viewshed use the threads instead.
-    outer_parallel = n >= omp_get_max_threads();
+    loop.parallel = n >= omp_get_max_threads();
 #endif
-#pragma omp parallel for schedule(dynamic, 1) if (outer_parallel)
-    for (int i = 0; i < n; ++i) {
-        if (stop.load(std::memory_order_relaxed))
-            continue;
-        try {
-            CancelOnlyProgress cancel(progress);
+    CancelOnlyProgress cancel(progress);
+    parallelFor(
+        n, progress,
+        [&](std::int64_t i) {
             const ViewshedGrids vs =
                 computeViewshed(dem, geometry, earth, candidates[i], vopt, cancel);
             const CellWindow& win = vs.window;
@@ -101,26 +95,11 @@ SiteSelectionResult selectSites(const Grid<float>& dem, const GridGeometry& geom
                 }
             }
             seen[i] = std::move(visible);
-            {
-                std::lock_guard<std::mutex> lock(merge);
-                evaluated.unite(inside);
-            }
-        } catch (...) {
             std::lock_guard<std::mutex> lock(merge);
-            if (!failure)
-                failure = std::current_exception();
-            stop = true;
-        }
-        const std::int64_t d = ++done;
-        if (progress.cancelled())
-            stop = true;
-#pragma omp critical(lookfar_progress)
-        progress.advance(d);
-    }
+            evaluated.unite(inside);
+        },
+        loop);
     progress.end();
-    throwIfCancelled(progress);
-    if (failure)
-        std::rethrow_exception(failure);
 
     // 2. Values: cell areas by row, or the weights.
     CellValues values;

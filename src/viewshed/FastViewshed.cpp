@@ -38,13 +38,18 @@
 // Cost: about 1.3 bound steps per cell plus the exact re-checks; memory: the output grids and
 // one array of bounds per thread (a few bytes per cell of the longest sightline).
 #include <algorithm>
-#include <atomic>
 #include <cmath>
 #include <cstdint>
 #include <limits>
+#include <memory>
 #include <vector>
 
+#ifdef _OPENMP
+#include <omp.h>
+#endif
+
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Units.hpp"
 #include "lookfar/viewshed/SightlineSamples.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
@@ -300,28 +305,26 @@ void FastEngine::run(Progress& progress) {
     }
     const std::int64_t n_tasks = static_cast<std::int64_t>(tasks.size());
     progress.begin("fast viewshed", n_tasks);
-    std::atomic<std::int64_t> done{0};
-    std::atomic<bool> stop{false};
-#pragma omp parallel
-    {
-        Scratch scratch;  // owned by this thread
-        scratch.hi.assign(static_cast<std::size_t>(max_a_end_) + 1, kNegInf);
-        scratch.h_hi.assign(static_cast<std::size_t>(max_a_end_) + 1, kNegInf);
-        scratch.block_max.assign(static_cast<std::size_t>(max_a_end_) / kBlock + 2, kNegInf);
-#pragma omp for schedule(dynamic, 1)
-        for (std::int64_t t = 0; t < n_tasks; ++t) {
-            if (stop.load(std::memory_order_relaxed))
-                continue;
-            runTask(tasks[t], scratch);
-            const std::int64_t d = ++done;
-            if (progress.cancelled())
-                stop = true;
-#pragma omp critical(lookfar_progress)
-            progress.advance(d);
+    int threads = 1;
+#ifdef _OPENMP
+    threads = omp_get_max_threads();
+#endif
+    std::vector<std::unique_ptr<Scratch>> scratches(static_cast<std::size_t>(threads));
+    parallelFor(n_tasks, progress, [&](std::int64_t t) {
+        int thread = 0;
+#ifdef _OPENMP
+        thread = omp_get_thread_num();
+#endif
+        std::unique_ptr<Scratch>& scratch = scratches[static_cast<std::size_t>(thread)];
+        if (!scratch) {  // owned by this thread
+            scratch = std::make_unique<Scratch>();
+            scratch->hi.assign(static_cast<std::size_t>(max_a_end_) + 1, kNegInf);
+            scratch->h_hi.assign(static_cast<std::size_t>(max_a_end_) + 1, kNegInf);
+            scratch->block_max.assign(static_cast<std::size_t>(max_a_end_) / kBlock + 2, kNegInf);
         }
-    }
+        runTask(tasks[t], *scratch);
+    });
     progress.end();
-    throwIfCancelled(progress);
 }
 
 void FastEngine::runTask(const Task& task, Scratch& scratch) const {

@@ -4,9 +4,7 @@
 // maxima, so the order in which sites finish does not change the result.
 #include "lookfar/viewshed/MultiViewshed.hpp"
 
-#include <atomic>
 #include <cmath>
-#include <exception>
 #include <limits>
 #include <string>
 
@@ -15,6 +13,7 @@
 #endif
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 
 namespace lookfar {
 
@@ -76,44 +75,22 @@ MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& ge
     threads = omp_get_max_threads();
 #endif
     progress.begin(n == 1 ? "viewshed" : "viewsheds of " + std::to_string(n) + " sites", n);
-    std::atomic<int> done{0};
-    std::atomic<bool> stop{false};
     CancelOnlyProgress inner(progress);
-    auto one = [&](int i) {
-        ViewshedGrids g = computeViewshed(dem, geometry, earth, observers[i], site_options, inner);
-        out.sites[i] = summarizeViewshed(g.visible, g.window, geometry, observers[i]);
+    ParallelForOptions loop;
+    // With fewer sites than threads, the sites run one after the other, each engine's own
+    // parallel loop on every thread.
+    loop.parallel = n >= threads && threads > 1;
+    parallelFor(
+        n, progress,
+        [&](std::int64_t i) {
+            ViewshedGrids g =
+                computeViewshed(dem, geometry, earth, observers[i], site_options, inner);
+            out.sites[i] = summarizeViewshed(g.visible, g.window, geometry, observers[i]);
 #pragma omp critical(lookfar_multiviewshed_merge)
-        merge(out, g);
-    };
-    std::exception_ptr failure;  // the first error of any site, rethrown after the loop
-    auto guarded = [&](int i) {
-        try {
-            one(i);
-        } catch (...) {
-#pragma omp critical(lookfar_multiviewshed_error)
-            if (!failure)
-                failure = std::current_exception();
-            stop = true;
-            return;
-        }
-        const int d = ++done;
-#pragma omp critical(lookfar_progress)
-        progress.advance(d);
-    };
-    if (n >= threads && threads > 1) {
-#pragma omp parallel for schedule(dynamic, 1)
-        for (int i = 0; i < n; ++i) {
-            if (!stop.load(std::memory_order_relaxed))
-                guarded(i);  // the engine's own parallel loop runs on this thread alone
-        }
-    } else {
-        for (int i = 0; i < n && !stop; ++i)
-            guarded(i);
-    }
+            merge(out, g);
+        },
+        loop);
     progress.end();
-    if (failure)
-        std::rethrow_exception(failure);
-    throwIfCancelled(progress);
     return out;
 }
 

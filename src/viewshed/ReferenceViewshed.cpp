@@ -2,10 +2,10 @@
 // reach on its own, O(distance) samples per cell. It is the oracle the fast engine, the tests
 // and the benchmark are measured against. OpenMP over rows; each cell is judged independently,
 // so the result is the same for any number of threads.
-#include <atomic>
 #include <cmath>
 #include <limits>
 
+#include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/viewshed/SightlineRule.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 
@@ -28,12 +28,8 @@ ViewshedGrids referenceViewshed(const Grid<float>& dem, const GridGeometry& geom
     if (options.want_angle)
         out.angle = Grid<float>(win.width, win.height, nan);
     progress.begin("reference viewshed", win.height);
-    std::atomic<std::int64_t> rows_done{0};
-    std::atomic<bool> stop{false};
-#pragma omp parallel for schedule(dynamic, 1)
-    for (int r = win.row0; r < win.row0 + win.height; ++r) {
-        if (stop.load(std::memory_order_relaxed))
-            continue;
+    parallelFor(win.height, progress, [&](std::int64_t i) {
+        const int r = win.row0 + static_cast<int>(i);
         for (int c = win.col0; c < win.col0 + win.width; ++c) {
             // Cells beyond reach are skipped before their sightline is walked; the distance is
             // the one judge() reports.
@@ -49,14 +45,8 @@ ViewshedGrids referenceViewshed(const Grid<float>& dem, const GridGeometry& geom
             if (options.want_angle)
                 out.angle(oc, orow) = static_cast<float>(v.angle_deg);
         }
-        std::int64_t done = ++rows_done;
-        if (progress.cancelled())
-            stop = true;
-#pragma omp critical(lookfar_progress)
-        progress.advance(done);
-    }
+    });
     progress.end();
-    throwIfCancelled(progress);
     return out;
 }
 
