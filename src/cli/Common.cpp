@@ -226,8 +226,9 @@ void TerminalProgress::advance(std::int64_t done) {
     int percent = static_cast<int>(100.0 * static_cast<double>(done) / total_);
     if (percent > 100)
         percent = 100;
+    // Never backwards: a figure at or below the last one shown is not drawn again.
     if (tty_) {
-        if (percent == last_shown_)
+        if (percent <= last_shown_)
             return;
         last_shown_ = percent;
         int filled = percent * 30 / 100;
@@ -237,7 +238,7 @@ void TerminalProgress::advance(std::int64_t done) {
         std::fflush(stderr);
     } else {
         int decile = percent / 10;
-        if (decile == last_shown_)
+        if (decile <= last_shown_)
             return;
         last_shown_ = decile;
         std::fprintf(stderr, "lookfar: %s %d%%\n", label_.c_str(), decile * 10);
@@ -247,6 +248,12 @@ void TerminalProgress::advance(std::int64_t done) {
 void TerminalProgress::end() {
     if (quiet_ || !open_)
         return;
+    if (cancelled()) {  // an interrupted stage is not completed: no 100 %, no "done"
+        if (tty_)
+            std::fprintf(stderr, "\n");
+        open_ = false;
+        return;
+    }
     double s = std::chrono::duration<double>(std::chrono::steady_clock::now() - start_).count();
     if (tty_) {
         std::fprintf(stderr, "\r%-24s [%s] 100%% (%.1f s)\n", label_.c_str(),
@@ -308,7 +315,7 @@ double parseEarthRadiusOption(const std::string& text, const std::string& earth_
 }
 
 RunContext prepareRun(const std::string& command, const CommonOptions& options,
-                      const std::vector<std::string>& outputs,
+                      const std::vector<NamedPath>& outputs,
                       const std::vector<std::string>& extra_inputs, DemCells cells) {
     RunContext ctx;
     ctx.start = std::chrono::steady_clock::now();
@@ -346,19 +353,23 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
     // ... then the outputs, before any long work (exit 4).
     ctx.inputs = {options.dem};
     ctx.inputs.insert(ctx.inputs.end(), extra_inputs.begin(), extra_inputs.end());
-    for (const auto& out : outputs) {
-        if (!out.empty())
-            checkOutputPath(out, ctx.inputs, options.overwrite);
-    }
+    std::vector<NamedPath> all;
+    for (const auto& out : outputs)
+        if (!out.path.empty())
+            all.push_back(out);
     if (!options.summary.empty())
-        checkOutputPath(options.summary, ctx.inputs, options.overwrite);
-    for (std::size_t i = 0; i < outputs.size(); ++i) {
-        for (std::size_t j = i + 1; j < outputs.size(); ++j) {
-            if (!outputs[i].empty() && outputs[i] == outputs[j]) {
-                throw UsageError("the output path " + outputs[i] + " is given twice");
+        all.push_back({"--summary", options.summary});
+    for (std::size_t i = 0; i < all.size(); ++i) {
+        for (std::size_t j = i + 1; j < all.size(); ++j) {
+            if (sameFile(all[i].path, all[j].path)) {
+                throw UsageError(all[i].option + " " + all[i].path + " and " + all[j].option + " " +
+                                 all[j].path +
+                                 " are the same file; give each output a path of its own");
             }
         }
     }
+    for (const auto& out : all)
+        checkOutputPath(out.path, ctx.inputs, options.overwrite);
     ctx.dem = std::move(probe);
     ctx.grid = ctx.dem.geometry;
     ctx.window = {0, 0, ctx.grid.width(), ctx.grid.height()};
@@ -610,29 +621,11 @@ void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, d
     spec.unit_type = unit;
     RasterWriter writer(spec);
     writeWindowBand(ctx, writer, 1, data);
-    writer.commit();
+    ctx.outputs->addRaster(writer);
 }
 
-void writeTextFile(const std::string& path, const std::string& content) {
-    std::string temp = path + ".lookfar-" + std::to_string(getpid()) + ".tmp";
-    {
-        std::ofstream out(temp, std::ios::binary);
-        if (!out)
-            throw OutputError(path + ": cannot write the file");
-        out << content;
-        if (!out) {
-            std::remove(temp.c_str());
-            throw OutputError(path + ": writing failed");
-        }
-    }
-    if (interruptFlag().load()) {
-        std::remove(temp.c_str());
-        throw Interrupted();
-    }
-    if (std::rename(temp.c_str(), path.c_str()) != 0) {
-        std::remove(temp.c_str());
-        throw OutputError(path + ": cannot move the finished file into place");
-    }
+void writeTextFile(const RunContext& ctx, const std::string& path, const std::string& content) {
+    ctx.outputs->addText(path, content);
 }
 
 void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& table) {
@@ -643,7 +636,9 @@ void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& t
         summary["extent"] = extentJson(ctx);
     summary["elapsed_s"] = std::round(elapsed * 1000.0) / 1000.0;
     if (!ctx.options.summary.empty())
-        writeTextFile(ctx.options.summary, summary.dump(2) + "\n");
+        writeTextFile(ctx, ctx.options.summary, summary.dump(2) + "\n");
+    // Every output of the run is finished in its temporary file by now: rename them together.
+    ctx.outputs->commit();
     if (ctx.options.json) {
         std::cout << summary.dump(2) << "\n";
     } else {

@@ -18,6 +18,7 @@
 #include "lookfar/earth/EarthModel.hpp"
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/Dem.hpp"
+#include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/RasterWriter.hpp"
 #include "lookfar/io/SitesCsv.hpp"
 #include "lookfar/report/Summary.hpp"
@@ -122,6 +123,14 @@ struct RunContext {
     std::unique_ptr<TerminalProgress> progress;
     std::chrono::steady_clock::time_point start;
     std::vector<std::string> inputs;  ///< paths of every input (for output checks)
+    /// The run's outputs, finished in temporaries and renamed together by finishSummary().
+    std::unique_ptr<OutputSet> outputs = std::make_unique<OutputSet>();
+};
+
+/// An output path and the option that gave it (for messages).
+struct NamedPath {
+    std::string option;
+    std::string path;
 };
 
 /// When prepareRun reads the DEM's cells.
@@ -131,10 +140,12 @@ enum class DemCells {
 };
 
 /// Validates the common options (exit 2 on bad values), opens the DEM (exit 3), checks every
-/// output path before any work (exit 4), then reads the DEM's cells unless `cells` is Later.
-/// `outputs` are the paths this run will write.
+/// output path before any work — two outputs that are the same file are exit 2 naming both
+/// options; an output that cannot be written is exit 4 — then reads the DEM's cells unless
+/// `cells` is Later. `outputs` are the paths this run will write (empty paths are skipped);
+/// --summary is added to them here.
 RunContext prepareRun(const std::string& command, const CommonOptions& options,
-                      const std::vector<std::string>& outputs,
+                      const std::vector<NamedPath>& outputs,
                       const std::vector<std::string>& extra_inputs = {},
                       DemCells cells = DemCells::Whole);
 
@@ -203,15 +214,17 @@ nlohmann::json extentJson(const RunContext& ctx);
 /// Writes `data`, a grid over the window read (ctx.window), into band `band` of an output raster
 /// made by outputSpec (in place on the DEM's grid, or the whole raster with --extent reach).
 void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data);
-/// Writes a one-band grid over the window read (uint8_t, uint16_t or float) atomically.
+/// Writes a one-band grid over the window read (uint8_t, uint16_t or float) into its temporary
+/// file; finishSummary() renames it with the run's other outputs.
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
                const void* data, const std::string& description, const std::string& unit = "");
 
-/// Writes the summary file (if --summary) and prints either the JSON (--json) or `table`.
+/// Writes the summary file (if --summary), renames every finished output of the run into place
+/// together (ctx.outputs), then prints either the JSON (--json) or `table`.
 void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& table);
 
-/// Writes a text file atomically (temp + rename), refusing to overwrite unless allowed.
-void writeTextFile(const std::string& path, const std::string& content);
+/// Finishes a text output in its temporary file; finishSummary() renames it with the others.
+void writeTextFile(const RunContext& ctx, const std::string& path, const std::string& content);
 
 /// `v` through printf's `format` (one double conversion).
 std::string printfNumber(const char* format, double v);

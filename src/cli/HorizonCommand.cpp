@@ -168,7 +168,8 @@ void runGrid(const HorizonState& st) {
         throw UsageError("--directions: " + std::to_string(st.directions) +
                          " is outside 1 to 3600");
     }
-    RunContext ctx = prepareRun("horizon", st.options, {st.output, st.distance, st.svf, st.dip});
+    RunContext ctx = prepareRun("horizon", st.options,
+                                {{"-o", st.output}, {"--distance", st.distance}, {"--svf", st.svf}, {"--dip", st.dip}});
     const int n = opt.directions;
     opt.observer_height_m = ctx.observer_height_m;
     opt.reach_m = ctx.reach_m;
@@ -304,7 +305,7 @@ void runGrid(const HorizonState& st) {
         return o;
     }());
     for (auto& w : writers)
-        w->commit();
+        ctx.outputs->addRaster(*w);
     finishSummary(ctx, j, t.render());
 }
 
@@ -392,7 +393,8 @@ void runPoint(const HorizonState& st) {
         throw UsageError("--step: " + printfNumber("%g", st.step) + "° is outside 0.05° to 90°");
     }
     const MapPoint given = parsePoint(st.at, "--at");
-    RunContext ctx = prepareRun("horizon", st.options, {st.csv, st.plot}, {}, DemCells::Later);
+    RunContext ctx = prepareRun("horizon", st.options, {{"--csv", st.csv}, {"--plot", st.plot}}, {},
+                                DemCells::Later);
     const Observer spot =
         placeObserver(ctx, "--at", given.x, given.y, ctx.observer_height_m, "spot");
     readDemWindow(ctx, workWindow(ctx, {spot}));  // the cells within reach of the spot
@@ -504,10 +506,10 @@ void runPoint(const HorizonState& st) {
             }
             csv += "\n";
         }
-        writeTextFile(st.csv, csv);
+        writeTextFile(ctx, st.csv, csv);
     }
     if (!st.plot.empty()) {
-        writeTextFile(st.plot,
+        writeTextFile(ctx, st.plot,
                       svgPanorama(p, "Horizon from " + fmtg(given.x) + ", " + fmtg(given.y) +
                                          " (eye " + formatNumber(p.eye_m, 1) + " m)"));
     }

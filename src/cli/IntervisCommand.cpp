@@ -41,7 +41,7 @@ struct PairGeometry {
 
 void runIntervis(const IntervisState& s) {
     const CommonOptions& o = s.options;
-    RunContext ctx = prepareRun("intervis", o, {s.matrix, s.lines}, {s.stations}, DemCells::Later);
+    RunContext ctx = prepareRun("intervis", o, {{"-o", s.matrix}, {"--lines", s.lines}}, {s.stations}, DemCells::Later);
     ctx.run.method = "reference";
     ctx.run.extra["STATIONS"] = s.stations;
     const GridGeometry& g = ctx.grid;
@@ -169,9 +169,9 @@ void runIntervis(const IntervisState& s) {
         std::string text = "{\"type\": \"FeatureCollection\", \"features\": [\n";
         for (std::size_t k = 0; k < features.size(); ++k)
             text += features[k].dump() + (k + 1 < features.size() ? ",\n" : "\n");
-        writeTextFile(s.lines, text + "]}\n");
+        writeTextFile(ctx, s.lines, text + "]}\n");
     }
-    writeTextFile(s.matrix, csv);
+    writeTextFile(ctx, s.matrix, csv);
 
     nlohmann::json j = summaryBase(ctx.run);
     j["parameters"]["target_height_m"] = nullptr;  // each target is the other station's height

@@ -265,7 +265,8 @@ void runLink(const LinkState& s) {
     }
     const MapPoint from_in = parsePoint(s.from, "--from");
     const MapPoint to_in = parsePoint(s.to, "--to");
-    RunContext ctx = prepareRun("link", o, {s.csv, s.plot}, {}, DemCells::Later);
+    RunContext ctx = prepareRun("link", o, {{"--csv", s.csv}, {"--plot", s.plot}}, {},
+                                DemCells::Later);
     ctx.run.observer_height_m = from_h;
     ctx.run.target_height_m = to_h;
     ctx.run.method = "exact";
@@ -301,9 +302,9 @@ void runLink(const LinkState& s) {
     }
 
     if (!s.csv.empty())
-        writeTextFile(s.csv, profileCsv(r, path, geographic));
+        writeTextFile(ctx, s.csv, profileCsv(r, path, geographic));
     if (!s.plot.empty())
-        writeTextFile(s.plot, profileSvg(r, fresnel, frequency_mhz));
+        writeTextFile(ctx, s.plot, profileSvg(r, fresnel, frequency_mhz));
 
     nlohmann::json j = summaryBase(ctx.run);
     j["parameters"]["frequency_mhz"] = finiteOrNull(frequency_mhz);

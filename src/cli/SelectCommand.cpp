@@ -113,7 +113,7 @@ void runSelect(const SelectState& s) {
     std::vector<std::string> inputs = {s.candidates};
     if (!s.weight.empty())
         inputs.push_back(s.weight);
-    RunContext ctx = prepareRun("select", o, {s.output, s.csv}, inputs, DemCells::Later);
+    RunContext ctx = prepareRun("select", o, {{"-o", s.output}, {"--csv", s.csv}}, inputs, DemCells::Later);
     const PlacedSites placed =
         placeSitesCsv(ctx, s.candidates, "candidate", "the ranking needs unique names");
     const std::vector<Site>& sites = placed.rows;
@@ -165,7 +165,7 @@ void runSelect(const SelectState& s) {
                printfFinite("%.4f", p.cumulative_percent) + "\n";
     }
     if (!s.csv.empty())
-        writeTextFile(s.csv, csv);
+        writeTextFile(ctx, s.csv, csv);
 
     nlohmann::json j = summaryBase(ctx.run);
     j["parameters"]["count"] = has_count ? nlohmann::json(s.count) : nlohmann::json(nullptr);

@@ -101,7 +101,7 @@ void runViewshed(const ViewshedState& st) {
     if (single)
         given = parsePoint(st.observer, "--observer");  // exit 2 before any file is touched
 
-    std::vector<std::string> outputs = {st.output, st.margin, st.angle};
+    std::vector<NamedPath> outputs = {{"-o", st.output}, {"--margin", st.margin}, {"--angle", st.angle}};
     std::vector<std::string> extra_inputs;
     if (!single)
         extra_inputs.push_back(st.sites);
@@ -297,7 +297,7 @@ void runViewshed(const ViewshedState& st) {
         table = t.render() + "\n" + c.render() + "\n" + k.render();
     }
     for (auto& w : writers)
-        w->commit();
+        ctx.outputs->addRaster(*w);
     if (!table.empty() && table.back() != '\n')
         table += "\n";
     finishSummary(ctx, j, table);

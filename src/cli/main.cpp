@@ -17,10 +17,12 @@
 
 namespace {
 
-extern "C" void onInterrupt(int) {
+// SIGINT (Ctrl-C), SIGTERM and SIGHUP (a closed terminal or SSH session) all stop the run the
+// same way: the engines see the flag, the outputs' temporaries are removed, exit 130.
+extern "C" void onInterrupt(int sig) {
     lookfar::interruptFlag().store(true);
-    // A second Ctrl-C falls back to the default action.
-    std::signal(SIGINT, SIG_DFL);
+    // A second signal of the same kind falls back to the default action.
+    std::signal(sig, SIG_DFL);
 }
 
 /// The names of the commands, for messages: "info, viewshed, … or help".
@@ -181,6 +183,7 @@ int main(int argc, char** argv) {
 
     std::signal(SIGINT, onInterrupt);
     std::signal(SIGTERM, onInterrupt);
+    std::signal(SIGHUP, onInterrupt);
     try {
         for (auto& c : commands) {
             if (c.app->parsed()) {

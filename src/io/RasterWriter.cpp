@@ -7,24 +7,17 @@
 #include <unistd.h>
 
 #include <atomic>
+#include <cerrno>
 #include <cstdio>
 
 #include "GdalSupport.hpp"
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/Progress.hpp"
+#include "lookfar/io/OutputSet.hpp"
 
 namespace lookfar {
 
 namespace {
-
-std::string parentFolder(const std::string& path) {
-    auto slash = path.find_last_of('/');
-    if (slash == std::string::npos)
-        return ".";
-    if (slash == 0)
-        return "/";
-    return path.substr(0, slash);
-}
 
 GDALDataType gdalType(PixelType t) {
     switch (t) {
@@ -37,8 +30,6 @@ GDALDataType gdalType(PixelType t) {
     }
     return GDT_Float32;
 }
-
-std::atomic<int> g_temp_counter{0};
 
 }  // namespace
 
@@ -53,7 +44,7 @@ void checkOutputPath(const std::string& path, const std::vector<std::string>& in
                      bool overwrite) {
     if (path.empty())
         throw OutputError("an output path is empty");
-    std::string folder = parentFolder(path);
+    std::string folder = folderOf(path);
     struct stat fst {};
     if (stat(folder.c_str(), &fst) != 0 || !S_ISDIR(fst.st_mode)) {
         throw OutputError(path + ": the folder '" + folder + "' does not exist");
@@ -87,9 +78,7 @@ RasterWriter::RasterWriter(RasterSpec spec) : spec_(std::move(spec)) {
     GDALDriverH drv = GDALGetDriverByName("GTiff");
     if (!drv)
         throw InternalError("GDAL has no GTiff driver");
-    temp_path_ = parentFolder(spec_.path) + "/." +
-                 spec_.path.substr(spec_.path.find_last_of('/') + 1) + ".lookfar-" +
-                 std::to_string(getpid()) + "-" + std::to_string(g_temp_counter++) + ".tmp.tif";
+    temp_path_ = temporaryPathFor(spec_.path, ".tif");
     std::vector<std::string> opts = spec_.creation_options.empty()
                                         ? defaultCreationOptions(spec_.type)
                                         : spec_.creation_options;
@@ -141,7 +130,7 @@ RasterWriter::RasterWriter(RasterSpec spec) : spec_(std::move(spec)) {
 RasterWriter::~RasterWriter() {
     if (dataset_)
         GDALClose(static_cast<GDALDatasetH>(dataset_));
-    if (!committed_)
+    if (!handed_over_)
         std::remove(temp_path_.c_str());
 }
 
@@ -194,24 +183,28 @@ void RasterWriter::writeBlock(int band, int block_col, int block_row, const void
     }
 }
 
-void RasterWriter::commit() {
+std::string RasterWriter::finish() {
     if (!dataset_)
-        throw InternalError("commit of a closed raster " + spec_.path);
+        throw InternalError("finish of a closed raster " + spec_.path);
     GDALDatasetH ds = static_cast<GDALDatasetH>(dataset_);
     dataset_ = nullptr;
     CPLErrorReset();
+    errno = 0;
     GDALFlushCache(ds);
     GDALClose(ds);
+    int err = errno;
     if (CPLGetLastErrorType() >= CE_Failure) {
         throw OutputError(spec_.path + ": finishing the file failed (" +
-                          io_detail::lastGdalError() + ")");
+                          writeFailureReason(spec_.path, io_detail::lastGdalError(), err) + ")");
     }
-    if (interruptFlag().load())
-        throw Interrupted();
-    if (std::rename(temp_path_.c_str(), spec_.path.c_str()) != 0) {
-        throw OutputError(spec_.path + ": cannot move the finished file into place");
-    }
-    committed_ = true;
+    handed_over_ = true;
+    return temp_path_;
+}
+
+void RasterWriter::commit() {
+    OutputSet one;
+    one.addRaster(*this);
+    one.commit();
 }
 
 }  // namespace lookfar

@@ -216,9 +216,12 @@ TEST(ViewshedBadInputCliTest, OutputsAreCheckedBeforeTheWork) {
     EXPECT_NE(firstLine(r.err).find("same file"), std::string::npos) << r.err;
 }
 
-// Ctrl-C during a run: exit code 130 (128 + SIGINT) and no file, not even a temporary one, in the
-// output folder. The reference method on a 1200² DEM runs for seconds, long enough to interrupt.
-TEST(ViewshedBadInputCliTest, InterruptLeavesNoFileBehind) {
+// Ctrl-C, SIGTERM, or SIGHUP (a closed terminal or SSH session) during a run: exit code 130 and
+// no file, not even a temporary one, in the output folder. The reference method on a 1200² DEM
+// runs for seconds, long enough to interrupt.
+class InterruptCliTest : public ::testing::TestWithParam<int> {};
+
+TEST_P(InterruptCliTest, InterruptLeavesNoFileBehind) {
     ScratchDir in, out, capture;
     const std::string dem = in.file("big.tif");
     {
@@ -260,7 +263,7 @@ TEST(ViewshedBadInputCliTest, InterruptLeavesNoFileBehind) {
         std::this_thread::sleep_for(std::chrono::milliseconds(20));
     }
     std::this_thread::sleep_for(std::chrono::milliseconds(200));
-    kill(pid, SIGINT);
+    kill(pid, GetParam());
     int status = 0;
     waitpid(pid, &status, 0);
     ASSERT_TRUE(WIFEXITED(status));
@@ -268,3 +271,10 @@ TEST(ViewshedBadInputCliTest, InterruptLeavesNoFileBehind) {
     EXPECT_NE(readFile(err).find("interrupted"), std::string::npos) << readFile(err);
     EXPECT_TRUE(out.entries().empty()) << "left behind: " << out.entries().front();
 }
+
+INSTANTIATE_TEST_SUITE_P(Signals, InterruptCliTest, ::testing::Values(SIGINT, SIGTERM, SIGHUP),
+                         [](const ::testing::TestParamInfo<int>& info) {
+                             return std::string(info.param == SIGINT    ? "SIGINT"
+                                                : info.param == SIGTERM ? "SIGTERM"
+                                                                        : "SIGHUP");
+                         });

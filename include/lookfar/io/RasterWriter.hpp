@@ -1,7 +1,8 @@
 #pragma once
 // Writing rasters through GDAL, safely: the raster goes to a temporary file in the output's
-// folder and is renamed into place by commit(); a writer destroyed without commit() (an error,
-// Ctrl-C) removes its temporary file, so no partial file is ever left at the output path.
+// folder, finished by finish() and renamed into place with the run's other outputs by an
+// OutputSet (or by commit() alone); a writer destroyed before finish() (an error, Ctrl-C) removes
+// its temporary file, so no partial file is ever left at the output path.
 #include <map>
 #include <memory>
 #include <string>
@@ -66,15 +67,19 @@ class RasterWriter {
     /// are ignored). For rasters written block by block in many bands, GDAL's cache would keep a
     /// block per band.
     void writeBlock(int band, int block_col, int block_row, const void* data);
-    /// Closes the file and renames it into place. Throws OutputError, or Interrupted when
-    /// the run was interrupted (then nothing is renamed).
+    /// Closes the file (its temporary is then complete) and hands the temporary file to the
+    /// caller, who renames or removes it (OutputSet does). Throws OutputError (the message says
+    /// when the disk is full); the writer then still removes its temporary.
+    std::string finish();
+    /// finish() and rename into place, for a run with this one output. Throws OutputError, or
+    /// Interrupted when the run was interrupted (then nothing is renamed).
     void commit();
 
   private:
     RasterSpec spec_;
     std::string temp_path_;
     void* dataset_ = nullptr;  // GDALDatasetH
-    bool committed_ = false;
+    bool handed_over_ = false;
 };
 
 }  // namespace lookfar
