@@ -11,6 +11,7 @@
 #include "lookfar/core/FractalTerrain.hpp"
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
+#include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Progress.hpp"
 #include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
@@ -45,6 +46,7 @@
 // io
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/Dem.hpp"
+#include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/RasterWriter.hpp"
 #include "lookfar/io/SitesCsv.hpp"
 
