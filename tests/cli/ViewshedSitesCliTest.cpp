@@ -273,8 +273,8 @@ TEST_P(InterruptCliTest, InterruptLeavesNoFileBehind) {
 }
 
 INSTANTIATE_TEST_SUITE_P(Signals, InterruptCliTest, ::testing::Values(SIGINT, SIGTERM, SIGHUP),
-                         [](const ::testing::TestParamInfo<int>& info) {
-                             return std::string(info.param == SIGINT    ? "SIGINT"
-                                                : info.param == SIGTERM ? "SIGTERM"
+                         [](const ::testing::TestParamInfo<int>& param) {
+                             return std::string(param.param == SIGINT    ? "SIGINT"
+                                                : param.param == SIGTERM ? "SIGTERM"
                                                                         : "SIGHUP");
                          });
