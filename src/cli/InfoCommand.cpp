@@ -22,21 +22,36 @@ std::string fmt6(double v) {
     return buf;
 }
 void runInfo(const CommonOptions& o) {
-    RunContext ctx = prepareRun("info", o, {});
-    const Dem& dem = ctx.dem;
+    RunContext ctx = prepareRun("info", o, {}, {}, DemCells::Later);
+    const Dem& dem = ctx.dem;  // described, no cells: they are read strip by strip below
     const GridGeometry& g = dem.geometry;
     std::int64_t nodata_count = 0, valid = 0;
     double zmin = std::numeric_limits<double>::infinity(), zmax = -zmin, sum = 0;
-    for (float v : dem.z.cells()) {
-        if (std::isnan(v)) {
-            ++nodata_count;
-            continue;
-        }
-        ++valid;
-        zmin = std::min<double>(zmin, v);
-        zmax = std::max<double>(zmax, v);
-        sum += v;
-    }
+    // Statistics strip by strip, in the order of the cells (the same sums as over the whole
+    // grid), in bounded memory: one strip of at least 256 rows, and 64 MiB of GDAL's cache.
+    DemReadOptions read;
+    read.band = o.band;
+    if (!o.z_unit.empty())
+        read.z_unit = dem.z_unit;
+    ctx.progress->begin("reading the DEM", g.height());
+    readDemStrips(o.dem, read, 256, std::int64_t{64} << 20,
+                  [&](int row0, const Grid<float>& strip) {
+                      for (float v : strip.cells()) {
+                          if (std::isnan(v)) {
+                              ++nodata_count;
+                              continue;
+                          }
+                          ++valid;
+                          zmin = std::min<double>(zmin, v);
+                          zmax = std::max<double>(zmax, v);
+                          sum += v;
+                      }
+                      ctx.progress->advance(row0 + strip.height());
+                      if (ctx.progress->cancelled())
+                          throw Interrupted();
+                  });
+    ctx.progress->end();
+    const std::int64_t cells_read = nodata_count + valid;
     double west = g.mapX(-0.5), east = g.mapX(g.width() - 0.5);
     double north = g.mapY(-0.5), south = g.mapY(g.height() - 0.5);
     LonLatOf ll(dem.crs.wkt);
@@ -81,6 +96,7 @@ void runInfo(const CommonOptions& o) {
         {"inverse_flattening", dem.crs.ellipsoid.f > 0 ? 1.0 / dem.crs.ellipsoid.f : 0.0}};
     j["dem"]["nodata_value"] = dem.nodata ? finiteOrNull(*dem.nodata) : nlohmann::json(nullptr);
     j["dem"]["nodata_cells"] = nodata_count;
+    j["cells_read"] = cells_read;
     j["elevation_m"] = {{"min", valid ? finiteOrNull(zmin) : nullptr},
                         {"max", valid ? finiteOrNull(zmax) : nullptr},
                         {"mean", valid ? finiteOrNull(sum / valid) : nullptr},
@@ -103,6 +119,8 @@ void runInfo(const CommonOptions& o) {
     t.add("area", formatArea(area));
     t.add("no-data value", dem.nodata ? fmtg(*dem.nodata) : "none");
     t.add("no-data cells", formatNumber(static_cast<double>(nodata_count), 0));
+    t.add("cells read",
+          formatNumber(static_cast<double>(cells_read), 0) + " (all, strip by strip)");
     if (valid) {
         t.add("elevation", formatNumber(zmin, 2) + " to " + formatNumber(zmax, 2) + " m, mean " +
                                formatNumber(sum / valid, 2) + " m");

@@ -159,47 +159,15 @@ Dem probeDem(const std::string& path, const DemReadOptions& options) {
     return dem;
 }
 
-Dem readDem(const std::string& path, const DemReadOptions& options) {
-    GDALDatasetH ds = nullptr;
-    DatasetCloser closer{nullptr};
-    Dem dem;
-    try {
-        dem = openAndDescribe(path, options, ds);
-    } catch (...) {
-        if (ds)
-            GDALClose(ds);
-        throw;
-    }
-    closer.ds = ds;
-    int w = dem.geometry.width(), h = dem.geometry.height();
-    dem.z = Grid<float>(w, h);
-    GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
-    // Read in strips of whole block rows and drop the band's block cache after each: otherwise
-    // GDAL keeps a decoded copy of every block (up to GDAL_CACHEMAX, 5 % of RAM by default) next
-    // to the grid, doubling the memory a large DEM needs.
-    int block_x = 0, block_y = 0;
-    GDALGetBlockSize(band, &block_x, &block_y);
-    block_y = std::max(1, block_y);
-    const int strip_rows = block_y * std::max(1, (256 + block_y - 1) / block_y);
-    for (int r = 0; r < h;) {
-        const int abs_row = options.win_row + r;
-        const int end_row = std::min((abs_row / strip_rows + 1) * strip_rows, options.win_row + h);
-        const int rows = end_row - abs_row;
-        if (GDALRasterIO(band, GF_Read, options.win_col, abs_row, w, rows, dem.z.row(r), w, rows,
-                         GDT_Float32, 0, 0) != CE_None) {
-            throw InputError(path + ": reading the elevations failed (" +
-                             io_detail::lastGdalError() + ")");
-        }
-        GDALFlushRasterCache(band);
-        r += rows;
-    }
+namespace {
+
+/// No-data to NaN and stored units to metres, in place.
+void toMetres(const Dem& dem, float* z, std::size_t n) {
     const float nan = std::numeric_limits<float>::quiet_NaN();
     const bool has_nd = dem.nodata.has_value();
     const float nd = has_nd ? static_cast<float>(*dem.nodata) : 0.0f;
     const bool nd_is_nan = has_nd && std::isnan(*dem.nodata);
     const double scale = dem.z_unit.metres;
-    float* z = dem.z.data();
-    const std::size_t n = dem.z.size();
     for (std::size_t i = 0; i < n; ++i) {
         float v = z[i];
         if ((has_nd && !nd_is_nan && v == nd) || !std::isfinite(v)) {
@@ -208,7 +176,94 @@ Dem readDem(const std::string& path, const DemReadOptions& options) {
             z[i] = static_cast<float>(v * scale);
         }
     }
+}
+
+/// Rows of the strips a window is read in: whole block rows, at least `min_rows`.
+int stripRows(GDALRasterBandH band, int min_rows) {
+    int block_x = 0, block_y = 0;
+    GDALGetBlockSize(band, &block_x, &block_y);
+    block_y = std::max(1, block_y);
+    return block_y * std::max(1, (min_rows + block_y - 1) / block_y);
+}
+
+/// The DEM opened and described, its dataset in `ds` (closed again when describing throws).
+Dem openDem(const std::string& path, const DemReadOptions& options, GDALDatasetH& ds) {
+    try {
+        return openAndDescribe(path, options, ds);
+    } catch (...) {
+        if (ds)
+            GDALClose(ds);
+        ds = nullptr;
+        throw;
+    }
+}
+
+/// Reads the window of `dem` (opened as `ds`) in strips of whole block rows, at least
+/// `min_rows` each, dropping the band's block cache after each: otherwise GDAL keeps a decoded
+/// copy of every block (up to GDAL_CACHEMAX, 5 % of RAM by default). `into(r, rows)` gives where
+/// rows [r, r + rows) of the window go (rows × width floats); `done(r, rows)` follows each strip.
+template <typename Into, typename Done>
+void readStrips(GDALDatasetH ds, const Dem& dem, const DemReadOptions& options, int min_rows,
+                Into into, Done done) {
+    const int w = dem.geometry.width(), h = dem.geometry.height();
+    GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
+    const int strip_rows = stripRows(band, min_rows);
+    for (int r = 0; r < h;) {
+        const int abs_row = options.win_row + r;
+        const int end_row = std::min((abs_row / strip_rows + 1) * strip_rows, options.win_row + h);
+        const int rows = end_row - abs_row;
+        if (GDALRasterIO(band, GF_Read, options.win_col, abs_row, w, rows, into(r, rows), w, rows,
+                         GDT_Float32, 0, 0) != CE_None) {
+            throw InputError(dem.path + ": reading the elevations failed (" +
+                             io_detail::lastGdalError() + ")");
+        }
+        GDALFlushRasterCache(band);
+        done(r, rows);
+        r += rows;
+    }
+}
+
+}  // namespace
+
+Dem readDem(const std::string& path, const DemReadOptions& options) {
+    GDALDatasetH ds = nullptr;
+    Dem dem = openDem(path, options, ds);
+    DatasetCloser closer{ds};
+    dem.z = Grid<float>(dem.geometry.width(), dem.geometry.height());
+    readStrips(
+        ds, dem, options, 256, [&](int r, int) { return dem.z.row(r); }, [](int, int) {});
+    toMetres(dem, dem.z.data(), dem.z.size());
     return dem;
+}
+
+void readDemStrips(const std::string& path, const DemReadOptions& options, int min_rows,
+                   std::int64_t cache_bytes,
+                   const std::function<void(int row0, const Grid<float>& strip)>& strip) {
+    GDALDatasetH ds = nullptr;
+    const Dem dem = openDem(path, options, ds);
+    DatasetCloser closer{ds};
+    // GDAL's block cache is bounded meanwhile: the blocks of a VRT's sources are not dropped
+    // with the VRT band's own cache.
+    struct CacheLimit {
+        GIntBig saved = GDALGetCacheMax64();
+        explicit CacheLimit(std::int64_t bytes) {
+            if (bytes > 0 && bytes < saved)
+                GDALSetCacheMax64(bytes);
+        }
+        ~CacheLimit() { GDALSetCacheMax64(saved); }
+    } limit(cache_bytes);
+    Grid<float> buffer;
+    readStrips(
+        ds, dem, options, min_rows,
+        [&](int, int rows) {
+            if (buffer.width() != dem.geometry.width() || buffer.height() != rows)
+                buffer = Grid<float>(dem.geometry.width(), rows);
+            return buffer.data();
+        },
+        [&](int r, int) {
+            toMetres(dem, buffer.data(), buffer.size());
+            strip(r, buffer);
+        });
 }
 
 }  // namespace lookfar

@@ -81,6 +81,52 @@ bool blockStored(const std::string& path, int bx, int by) {
     return stored;
 }
 
+/// demo_coast.tif cut into 2 × 2 tiles of unequal size in `dir`, then put together by a GDAL
+/// VRT: returns the VRT's path ("" and a test failure when GDAL fails).
+std::string coastMosaic(const ScratchDir& dir) {
+    GDALAllRegister();
+    GDALDatasetH src = GDALOpen(testRaster("demo_coast.tif").c_str(), GA_ReadOnly);
+    EXPECT_NE(src, nullptr);
+    if (!src)
+        return "";
+    std::vector<std::string> tiles;
+    const int cuts_c[] = {0, 230, 500}, cuts_r[] = {0, 170, 400};
+    for (int i = 0; i < 2; ++i) {
+        for (int k = 0; k < 2; ++k) {
+            const std::string path =
+                dir.file("tile" + std::to_string(i) + std::to_string(k) + ".tif");
+            const std::vector<std::string> args = {"-srcwin", std::to_string(cuts_c[i]),
+                                                   std::to_string(cuts_r[k]),
+                                                   std::to_string(cuts_c[i + 1] - cuts_c[i]),
+                                                   std::to_string(cuts_r[k + 1] - cuts_r[k])};
+            std::vector<char*> argv;
+            for (const auto& a : args)
+                argv.push_back(const_cast<char*>(a.c_str()));
+            argv.push_back(nullptr);
+            GDALTranslateOptions* opts = GDALTranslateOptionsNew(argv.data(), nullptr);
+            GDALDatasetH t = GDALTranslate(path.c_str(), src, opts, nullptr);
+            GDALTranslateOptionsFree(opts);
+            EXPECT_NE(t, nullptr) << path;
+            if (!t)
+                return "";
+            GDALClose(t);
+            tiles.push_back(path);
+        }
+    }
+    GDALClose(src);
+    std::vector<const char*> names;
+    for (const auto& t : tiles)
+        names.push_back(t.c_str());
+    const std::string vrt = dir.file("mosaic.vrt");
+    GDALDatasetH v = GDALBuildVRT(vrt.c_str(), static_cast<int>(names.size()), nullptr,
+                                  names.data(), nullptr, nullptr);
+    EXPECT_NE(v, nullptr);
+    if (!v)
+        return "";
+    GDALClose(v);
+    return vrt;
+}
+
 }  // namespace
 
 TEST(LargeDemCliTest, ReachRunOnAGeographicDemIsTheEngineOnTheWholeDem) {
@@ -227,43 +273,9 @@ TEST(LargeDemCliTest, UnknownExtentIsAUsageErrorAndWritesNothing) {
 }
 
 TEST(LargeDemCliTest, VrtMosaicOfTilesWorksLikeOneFile) {
-    // demo_coast.tif cut into 2 × 2 tiles of unequal size, then put together by a GDAL VRT.
     ScratchDir dir;
-    GDALAllRegister();
-    GDALDatasetH src = GDALOpen(testRaster("demo_coast.tif").c_str(), GA_ReadOnly);
-    ASSERT_NE(src, nullptr);
-    std::vector<std::string> tiles;
-    const int cuts_c[] = {0, 230, 500}, cuts_r[] = {0, 170, 400};
-    for (int i = 0; i < 2; ++i) {
-        for (int k = 0; k < 2; ++k) {
-            const std::string path =
-                dir.file("tile" + std::to_string(i) + std::to_string(k) + ".tif");
-            const std::vector<std::string> args = {"-srcwin", std::to_string(cuts_c[i]),
-                                                   std::to_string(cuts_r[k]),
-                                                   std::to_string(cuts_c[i + 1] - cuts_c[i]),
-                                                   std::to_string(cuts_r[k + 1] - cuts_r[k])};
-            std::vector<char*> argv;
-            for (const auto& a : args)
-                argv.push_back(const_cast<char*>(a.c_str()));
-            argv.push_back(nullptr);
-            GDALTranslateOptions* opts = GDALTranslateOptionsNew(argv.data(), nullptr);
-            GDALDatasetH t = GDALTranslate(path.c_str(), src, opts, nullptr);
-            GDALTranslateOptionsFree(opts);
-            ASSERT_NE(t, nullptr) << path;
-            GDALClose(t);
-            tiles.push_back(path);
-        }
-    }
-    GDALClose(src);
-    std::vector<const char*> names;
-    for (const auto& t : tiles)
-        names.push_back(t.c_str());
-    const std::string vrt = dir.file("mosaic.vrt");
-    GDALDatasetH v = GDALBuildVRT(vrt.c_str(), static_cast<int>(names.size()), nullptr,
-                                  names.data(), nullptr, nullptr);
-    ASSERT_NE(v, nullptr);
-    GDALClose(v);
-
+    const std::string vrt = coastMosaic(dir);
+    ASSERT_FALSE(vrt.empty());
     // The observer's 2 km window (cols 119 to 281, rows 69 to 231) spans all four tiles.
     for (const std::string extent : {"dem", "reach"}) {
         auto a = runJson({"viewshed", testRaster("demo_coast.tif"), "--observer", kCoastObserver,
@@ -288,4 +300,29 @@ TEST(LargeDemCliTest, VrtMosaicOfTilesWorksLikeOneFile) {
                       "--reach", "3000", "-o", dir.file("s2.tif")});
     EXPECT_EQ(a["selected"], b["selected"]);
     EXPECT_EQ(differingCells(readRaster(dir.file("s1.tif")), readRaster(dir.file("s2.tif"))), 0);
+}
+
+TEST(LargeDemCliTest, InfoReadsStripByStripWithTheSameFigures) {
+    // The figures of the mosaic of tiles are those of the single file (each of its 200 000 cells
+    // read once), and their sum is the one over the whole grid in the same order.
+    ScratchDir dir;
+    const std::string vrt = coastMosaic(dir);
+    ASSERT_FALSE(vrt.empty());
+    auto a = runJson({"info", testRaster("demo_coast.tif")});
+    auto b = runJson({"info", vrt});
+    EXPECT_EQ(a["cells_read"], 500 * 400);
+    EXPECT_EQ(b["cells_read"], 500 * 400);
+    EXPECT_EQ(a["elevation_m"], b["elevation_m"]);
+    EXPECT_EQ(a["dem"]["nodata_cells"], b["dem"]["nodata_cells"]);
+    const Dem dem = readDem(testRaster("demo_coast.tif"));
+    double sum = 0;
+    std::int64_t valid = 0;
+    for (float v : dem.z.cells()) {
+        if (!std::isnan(v)) {
+            sum += v;
+            ++valid;
+        }
+    }
+    EXPECT_EQ(a["elevation_m"]["cells_with_data"], valid);
+    EXPECT_EQ(a["elevation_m"]["mean"].get<double>(), sum / valid);
 }

@@ -1,6 +1,8 @@
 #pragma once
 // Reading DEMs through GDAL: any format GDAL reads (GeoTIFF, VRT mosaics, …).
 // Elevations are converted to metres; no-data cells become NaN in the grid.
+#include <cstdint>
+#include <functional>
 #include <optional>
 #include <string>
 
@@ -44,6 +46,14 @@ struct Dem {
 Dem probeDem(const std::string& path, const DemReadOptions& options = {});
 /// Reads the DEM (or the window of it given in options).
 Dem readDem(const std::string& path, const DemReadOptions& options = {});
+
+/// Reads the DEM (or the window of it given in options) strip by strip of whole block rows, at
+/// least `min_rows` rows each, and hands each strip to `strip` (its first row in the window read,
+/// and its cells in metres, NaN = no data). Memory is one strip, with GDAL's block cache bounded
+/// to `cache_bytes` meanwhile (0: unchanged). Same cells as readDem.
+void readDemStrips(const std::string& path, const DemReadOptions& options, int min_rows,
+                   std::int64_t cache_bytes,
+                   const std::function<void(int row0, const Grid<float>& strip)>& strip);
 
 /// Metres per stored unit and the unit's name from a GDAL unit type string ("m", "ft" …);
 /// nullopt for an empty or unknown string.
