@@ -25,6 +25,7 @@
 #include "lookfar/viewshed/SightlineRule.hpp"
 #include "lookfar/viewshed/SightlineSamples.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
+#include "lookfar/viewshed/ViewshedSummary.hpp"
 
 // horizon
 #include "lookfar/horizon/AsyncSink.hpp"

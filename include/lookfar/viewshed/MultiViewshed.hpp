@@ -9,7 +9,7 @@
 #include "lookfar/core/GridGeometry.hpp"
 #include "lookfar/core/Progress.hpp"
 #include "lookfar/earth/EarthModel.hpp"
-#include "lookfar/stats/ViewshedStats.hpp"
+#include "lookfar/viewshed/ViewshedSummary.hpp"
 #include "lookfar/viewshed/Observer.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 
