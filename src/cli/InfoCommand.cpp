@@ -14,14 +14,33 @@ namespace {
 
 struct InfoState {
     CommonOptions options;
+    bool approx = false;
 };
+
+/// The overview --approx reads: the coarsest with at least a million cells, else the finest;
+/// −1 when the DEM has none.
+int approxOverview(const std::vector<std::pair<int, int>>& sizes) {
+    int chosen = -1;
+    double chosen_cells = 0;
+    for (std::size_t i = 0; i < sizes.size(); ++i) {
+        const double cells = static_cast<double>(sizes[i].first) * sizes[i].second;
+        const bool better =
+            chosen < 0 || (cells >= 1e6 ? (chosen_cells < 1e6 || cells < chosen_cells)
+                                        : (chosen_cells < 1e6 && cells > chosen_cells));
+        if (better) {
+            chosen = static_cast<int>(i);
+            chosen_cells = cells;
+        }
+    }
+    return chosen;
+}
 
 std::string fmt6(double v) {
     char buf[64];
     std::snprintf(buf, sizeof buf, "%.6f", v);
     return buf;
 }
-void runInfo(const CommonOptions& o) {
+void runInfo(const CommonOptions& o, bool approx) {
     RunContext ctx = prepareRun("info", o, {}, {}, DemCells::Later);
     const Dem& dem = ctx.dem;  // described, no cells: they are read strip by strip below
     const GridGeometry& g = dem.geometry;
@@ -33,7 +52,14 @@ void runInfo(const CommonOptions& o) {
     read.band = o.band;
     if (!o.z_unit.empty())
         read.z_unit = dem.z_unit;
-    ctx.progress->begin("reading the DEM", g.height());
+    std::pair<int, int> overview_size{0, 0};
+    if (approx) {
+        const auto sizes = demOverviews(o.dem, read);
+        read.overview = approxOverview(sizes);
+        if (read.overview >= 0)
+            overview_size = sizes[read.overview];
+    }
+    ctx.progress->begin("reading the DEM", read.overview >= 0 ? overview_size.second : g.height());
     readDemStrips(o.dem, read, 256, std::int64_t{64} << 20,
                   [&](int row0, const Grid<float>& strip) {
                       for (float v : strip.cells()) {
@@ -97,6 +123,14 @@ void runInfo(const CommonOptions& o) {
     j["dem"]["nodata_value"] = dem.nodata ? finiteOrNull(*dem.nodata) : nlohmann::json(nullptr);
     j["dem"]["nodata_cells"] = nodata_count;
     j["cells_read"] = cells_read;
+    if (approx) {
+        // Figures from an overview: cell counts are the overview's, elevations approximate.
+        j["approximate"] = read.overview >= 0
+                               ? nlohmann::json{{"overview", read.overview},
+                                                {"overview_width", overview_size.first},
+                                                {"overview_height", overview_size.second}}
+                               : nlohmann::json("no overviews: every cell was read");
+    }
     j["elevation_m"] = {{"min", valid ? finiteOrNull(zmin) : nullptr},
                         {"max", valid ? finiteOrNull(zmax) : nullptr},
                         {"mean", valid ? finiteOrNull(sum / valid) : nullptr},
@@ -120,7 +154,11 @@ void runInfo(const CommonOptions& o) {
     t.add("no-data value", dem.nodata ? fmtg(*dem.nodata) : "none");
     t.add("no-data cells", formatNumber(static_cast<double>(nodata_count), 0));
     t.add("cells read",
-          formatNumber(static_cast<double>(cells_read), 0) + " (all, strip by strip)");
+          formatNumber(static_cast<double>(cells_read), 0) +
+              (read.overview >= 0 ? " of overview " + std::to_string(overview_size.first) + " × " +
+                                        std::to_string(overview_size.second) +
+                                        " (--approx: counts and elevations of the overview)"
+                                  : " (all, strip by strip)"));
     if (valid) {
         t.add("elevation", formatNumber(zmin, 2) + " to " + formatNumber(zmax, 2) + " m, mean " +
                                formatNumber(sum / valid, 2) + " m");
@@ -137,7 +175,12 @@ Command addInfoCommand(CLI::App& root) {
     CLI::App* app = root.add_subcommand(
         "info", "describe a DEM: size, CRS, units, cell size, extent, elevations");
     addCommonOptions(app, state->options, 0);
-    return {app, [state] { runInfo(state->options); }};
+    app->add_flag("--approx", state->approx,
+                  "statistics from the DEM's overview of at least a million cells (the coarsest "
+                  "such, else the finest), when it has overviews: quick on large DEMs; cell counts "
+                  "and elevations are then the overview's")
+        ->group("Input");
+    return {app, [state] { runInfo(state->options, state->approx); }};
 }
 
 }  // namespace lookfar::cli

@@ -202,18 +202,26 @@ Dem openDem(const std::string& path, const DemReadOptions& options, GDALDatasetH
 /// `min_rows` each, dropping the band's block cache after each: otherwise GDAL keeps a decoded
 /// copy of every block (up to GDAL_CACHEMAX, 5 % of RAM by default). `into(r, rows)` gives where
 /// rows [r, r + rows) of the window go (rows × width floats); `done(r, rows)` follows each strip.
+/// With options.overview ≥ 0, the whole of that overview is read instead.
 template <typename Into, typename Done>
 void readStrips(GDALDatasetH ds, const Dem& dem, const DemReadOptions& options, int min_rows,
                 Into into, Done done) {
-    const int w = dem.geometry.width(), h = dem.geometry.height();
+    int w = dem.geometry.width(), h = dem.geometry.height();
     GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
+    if (options.overview >= 0) {
+        band = GDALGetOverview(band, options.overview);
+        if (!band)
+            throw InternalError(dem.path + ": no overview " + std::to_string(options.overview));
+        w = GDALGetRasterBandXSize(band);
+        h = GDALGetRasterBandYSize(band);
+    }
     const int strip_rows = stripRows(band, min_rows);
     for (int r = 0; r < h;) {
         const int abs_row = options.win_row + r;
         const int end_row = std::min((abs_row / strip_rows + 1) * strip_rows, options.win_row + h);
         const int rows = end_row - abs_row;
-        if (GDALRasterIO(band, GF_Read, options.win_col, abs_row, w, rows, into(r, rows), w, rows,
-                         GDT_Float32, 0, 0) != CE_None) {
+        if (GDALRasterIO(band, GF_Read, options.win_col, abs_row, w, rows, into(r, rows, w), w,
+                         rows, GDT_Float32, 0, 0) != CE_None) {
             throw InputError(dem.path + ": reading the elevations failed (" +
                              io_detail::lastGdalError() + ")");
         }
@@ -231,7 +239,7 @@ Dem readDem(const std::string& path, const DemReadOptions& options) {
     DatasetCloser closer{ds};
     dem.z = Grid<float>(dem.geometry.width(), dem.geometry.height());
     readStrips(
-        ds, dem, options, 256, [&](int r, int) { return dem.z.row(r); }, [](int, int) {});
+        ds, dem, options, 256, [&](int r, int, int) { return dem.z.row(r); }, [](int, int) {});
     toMetres(dem, dem.z.data(), dem.z.size());
     return dem;
 }
@@ -255,15 +263,29 @@ void readDemStrips(const std::string& path, const DemReadOptions& options, int m
     Grid<float> buffer;
     readStrips(
         ds, dem, options, min_rows,
-        [&](int, int rows) {
-            if (buffer.width() != dem.geometry.width() || buffer.height() != rows)
-                buffer = Grid<float>(dem.geometry.width(), rows);
+        [&](int, int rows, int width) {
+            if (buffer.width() != width || buffer.height() != rows)
+                buffer = Grid<float>(width, rows);
             return buffer.data();
         },
         [&](int r, int) {
             toMetres(dem, buffer.data(), buffer.size());
             strip(r, buffer);
         });
+}
+
+std::vector<std::pair<int, int>> demOverviews(const std::string& path,
+                                              const DemReadOptions& options) {
+    GDALDatasetH ds = nullptr;
+    const Dem dem = openDem(path, options, ds);
+    DatasetCloser closer{ds};
+    GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
+    std::vector<std::pair<int, int>> sizes;
+    for (int i = 0; i < GDALGetOverviewCount(band); ++i) {
+        GDALRasterBandH o = GDALGetOverview(band, i);
+        sizes.emplace_back(o ? GDALGetRasterBandXSize(o) : 0, o ? GDALGetRasterBandYSize(o) : 0);
+    }
+    return sizes;
 }
 
 }  // namespace lookfar

@@ -11,6 +11,7 @@
 #include <nlohmann/json.hpp>
 
 #include <cmath>
+#include <fstream>
 #include <string>
 #include <vector>
 
@@ -325,4 +326,35 @@ TEST(LargeDemCliTest, InfoReadsStripByStripWithTheSameFigures) {
     }
     EXPECT_EQ(a["elevation_m"]["cells_with_data"], valid);
     EXPECT_EQ(a["elevation_m"]["mean"].get<double>(), sum / valid);
+}
+
+TEST(LargeDemCliTest, InfoApproxReadsAnOverview) {
+    // A copy of demo_coast.tif with 2×, 4× and 8× overviews averaged by GDAL: --approx reads
+    // the finest (none has a million cells), whose mean is the mean of the cells (each overview
+    // cell averages 2 × 2 whole cells: 500 × 400 divides evenly).
+    ScratchDir dir;
+    const std::string copy = dir.file("coast.tif");
+    {
+        std::ofstream(copy, std::ios::binary) << readFile(testRaster("demo_coast.tif"));
+        GDALAllRegister();
+        GDALDatasetH ds = GDALOpen(copy.c_str(), GA_Update);
+        ASSERT_NE(ds, nullptr);
+        int levels[] = {2, 4, 8};
+        EXPECT_EQ(GDALBuildOverviews(ds, "AVERAGE", 3, levels, 0, nullptr, nullptr, nullptr),
+                  CE_None);
+        GDALClose(ds);
+    }
+    auto exact = runJson({"info", copy});
+    auto approx = runJson({"info", copy, "--approx"});
+    EXPECT_EQ(exact["cells_read"], 500 * 400);
+    EXPECT_FALSE(exact.contains("approximate"));
+    EXPECT_EQ(approx["cells_read"], 250 * 200);
+    EXPECT_EQ(approx["approximate"]["overview_width"], 250);
+    EXPECT_NEAR(approx["elevation_m"]["mean"].get<double>(),
+                exact["elevation_m"]["mean"].get<double>(), 1e-3);
+    // Without overviews, --approx reads every cell and says so.
+    auto none = runJson({"info", testRaster("demo_coast.tif"), "--approx"});
+    EXPECT_EQ(none["cells_read"], 500 * 400);
+    EXPECT_TRUE(none["approximate"].is_string());
+    EXPECT_EQ(none["elevation_m"], exact["elevation_m"]);
 }

@@ -5,6 +5,8 @@
 #include <functional>
 #include <optional>
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
@@ -27,6 +29,9 @@ struct DemReadOptions {
     std::optional<LinearUnit> z_unit;  ///< overrides the band's unit type
     /// Window to read, in cells of the full raster: col, row, width, height (all 0 = all).
     int win_col = 0, win_row = 0, win_width = 0, win_height = 0;
+    /// readDemStrips only: read overview `overview` of the band (0 = the finest) instead of the
+    /// cells, whole (the window must be all); −1 = the cells themselves.
+    int overview = -1;
 };
 
 struct Dem {
@@ -54,6 +59,10 @@ Dem readDem(const std::string& path, const DemReadOptions& options = {});
 void readDemStrips(const std::string& path, const DemReadOptions& options, int min_rows,
                    std::int64_t cache_bytes,
                    const std::function<void(int row0, const Grid<float>& strip)>& strip);
+
+/// Sizes (width, height) of the overviews of the DEM's band, finest first (none: empty).
+std::vector<std::pair<int, int>> demOverviews(const std::string& path,
+                                              const DemReadOptions& options = {});
 
 /// Metres per stored unit and the unit's name from a GDAL unit type string ("m", "ft" …);
 /// nullopt for an empty or unknown string.
