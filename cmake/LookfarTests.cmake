@@ -12,6 +12,9 @@ include(GoogleTest)
 
 file(GLOB_RECURSE LOOKFAR_TEST_SOURCES CONFIGURE_DEPENDS ${CMAKE_CURRENT_SOURCE_DIR}/tests/*.cpp)
 list(FILTER LOOKFAR_TEST_SOURCES EXCLUDE REGEX "/tests/consumer/")
+# The libFuzzer entry points (tests/fuzz/fuzz_*.cpp) build only with LOOKFAR_FUZZ; the targets
+# they call (tests/fuzz/FuzzTargets.cpp) join lookfar_tests, which runs the seed corpus.
+list(FILTER LOOKFAR_TEST_SOURCES EXCLUDE REGEX "/tests/fuzz/fuzz_[A-Za-z0-9_]*\\.cpp$")
 add_executable(lookfar_tests ${LOOKFAR_TEST_SOURCES})
 target_include_directories(lookfar_tests PRIVATE ${CMAKE_CURRENT_SOURCE_DIR}/tests)
 target_link_libraries(lookfar_tests PRIVATE lookfar::core GTest::gtest GTest::gtest_main

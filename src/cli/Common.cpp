@@ -337,8 +337,10 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
     if (!options.crs.empty())
         validateCrs(options.crs, "--crs");
     for (const auto& co : options.creation_options) {
-        if (co.find('=') == std::string::npos || co.front() == '=') {
-            throw UsageError("--co: '" + echoText(co) + "' is not KEY=VALUE");
+        std::string key, value;
+        if (!splitKeyValue(co, &key, &value)) {
+            throw UsageError("--co: '" + echoText(co) +
+                             "' is not KEY=VALUE (a KEY of letters, digits and _)");
         }
     }
 #ifdef _OPENMP

@@ -98,6 +98,22 @@ std::string echoText(const std::string& text, std::size_t max_chars) {
     return out;
 }
 
+bool splitKeyValue(const std::string& text, std::string* key, std::string* value) {
+    const std::size_t eq = text.find('=');
+    if (eq == std::string::npos || eq == 0)
+        return false;
+    for (std::size_t i = 0; i < eq; ++i) {
+        const char c = text[i];
+        const bool word =
+            (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || (c >= '0' && c <= '9') || c == '_';
+        if (!word)
+            return false;
+    }
+    *key = text.substr(0, eq);
+    *value = text.substr(eq + 1);
+    return true;
+}
+
 std::string describeInvalidUtf8(const std::string& text) {
     const std::size_t at = invalidUtf8Offset(text);
     if (at == std::string::npos)

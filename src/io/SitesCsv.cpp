@@ -234,7 +234,10 @@ std::vector<Site> readSitesCsv(const std::string& path, const std::string& role)
 }
 
 std::string csvField(const std::string& value) {
-    if (value.find_first_of(",\"\n\r") == std::string::npos)
+    // Unquoted fields are trimmed when read: keep spaces at the ends inside quotes.
+    const bool edge_space = !value.empty() && (trim(value.substr(0, 1)).empty() ||
+                                               trim(value.substr(value.size() - 1)).empty());
+    if (value.find_first_of(",\"\n\r") == std::string::npos && !edge_space)
         return value;
     std::string out = "\"";
     for (char c : value) {

@@ -299,3 +299,10 @@ TEST(InputValidationCliTest, PointThatCannotBeTransformedNamesTheOptionOrTheLine
                    "--quiet"},
                   3, {"ll.csv, line 2: site 'Pole' at -3.9,95 cannot be transformed"}, out);
 }
+
+TEST(InputValidationCliTest, MissingStationsFileIsCalledTheStationsFile) {
+    ScratchDir in, out;
+    expectRefused(
+        {"intervis", kCone, "--stations", in.file("none.csv"), "-o", out.file("m.csv"), "--quiet"},
+        3, {"none.csv: cannot open the stations file"}, out);
+}

@@ -48,3 +48,18 @@ TEST(TextTest, EchoedTextIsCutAndHasNoControlBytes) {
     EXPECT_EQ(invalidUtf8Offset(cut), std::string::npos);
     EXPECT_EQ(cut.size(), 120u + std::string("…").size());
 }
+
+// GDAL creation options are KEY=VALUE with option names of letters, digits and '_' (GDAL's
+// GTiff driver documentation lists them so: COMPRESS, BLOCKXSIZE, NUM_THREADS).
+TEST(TextTest, CreationOptionSplitsAtTheFirstEquals) {
+    std::string key, value;
+    ASSERT_TRUE(splitKeyValue("COMPRESS=DEFLATE", &key, &value));
+    EXPECT_EQ(key, "COMPRESS");
+    EXPECT_EQ(value, "DEFLATE");
+    ASSERT_TRUE(splitKeyValue("KEY=a=b", &key, &value));
+    EXPECT_EQ(value, "a=b");
+    ASSERT_TRUE(splitKeyValue("TILED=", &key, &value));
+    EXPECT_EQ(value, "");
+    for (const char* bad : {"=YES", "COMPRESS", "", "BAD KEY=1", "K\xC3\xA9=1"})
+        EXPECT_FALSE(splitKeyValue(bad, &key, &value)) << bad;
+}

@@ -194,3 +194,15 @@ TEST(SitesCsvTest, EchoedTextIsCutAndEscaped) {
     EXPECT_EQ(esc.find('\x1B'), std::string::npos) << esc;
     EXPECT_NE(csvError(huge).find("line 2: 3 fields where the header has 4"), std::string::npos);
 }
+
+// What lookfar writes with csvField reads back as the same text (RFC 4180 quoting), also when a
+// name starts or ends with a space, which an unquoted field loses.
+TEST(SitesCsvTest, WrittenFieldsReadBackAsTheSameName) {
+    for (const std::string name : {"Fell", " Fell", "Fell ", "a, b", "say \"hi\"", "two\nlines"}) {
+        const auto back = parseSitesCsv("name,x,y\n" + csvField(name) + ",1,2\n", "s.csv");
+        ASSERT_EQ(back.size(), 1u);
+        EXPECT_EQ(back[0].name, name);
+    }
+    EXPECT_EQ(csvField("Fell"), "Fell");
+    EXPECT_EQ(csvField(" Fell"), "\" Fell\"");
+}

@@ -18,6 +18,10 @@ std::string escapeInvalidUtf8(const std::string& text);
 /// written as \xNN, cut after `max_chars` characters with "…" appended.
 std::string echoText(const std::string& text, std::size_t max_chars = 60);
 
+/// Splits "KEY=VALUE" at the first '=': KEY is one or more letters, digits and '_' (the form of
+/// GDAL's option names), VALUE is the rest. False, with `key` and `value` untouched, otherwise.
+bool splitKeyValue(const std::string& text, std::string* key, std::string* value);
+
 /// "byte 0xE9 at byte 5": names the first byte of `text` that breaks UTF-8 (1-based position),
 /// for messages; `text` must hold such a byte.
 std::string describeInvalidUtf8(const std::string& text);

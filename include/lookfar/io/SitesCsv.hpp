@@ -42,7 +42,9 @@ std::vector<Site> parseSitesCsv(const std::string& text, const std::string& path
 /// that are blank (only spaces and tabs, unquoted) are skipped.
 std::vector<CsvRecord> parseCsvRecords(const std::string& text, const std::string& path);
 
-/// Quotes a field for CSV output when it holds a comma, quote or line break.
+/// Quotes a field for CSV output when it holds a comma, quote or line break, or starts or ends
+/// with white space (which an unquoted field loses when read): parseCsvRecords reads it back
+/// as `value`.
 std::string csvField(const std::string& value);
 
 }  // namespace lookfar
