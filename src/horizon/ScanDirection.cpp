@@ -1,0 +1,99 @@
+// Scan directions of the fast horizon engine (see ScanDirection.hpp).
+#include "ScanDirection.hpp"
+
+namespace lookfar::horizon_detail::fast {
+
+void setUp(const EngineInput& in, int index, Direction& d) {
+    const int w = in.dem.width(), h = in.dem.height();
+    const GridMetric& metric = in.metric;
+    d.azimuth_deg = horizonAzimuthDeg(index, in.options.directions);
+    sinCosDeg(d.azimuth_deg, d.sin_a, d.cos_a);
+    auto slopeAt = [&](double row, bool& major_cols, int& sign) {
+        const double uc = d.sin_a / metric.eastPerCol(row), ur = d.cos_a / metric.northPerRow(row);
+        major_cols = std::fabs(uc) >= std::fabs(ur);
+        double m = major_cols ? ur / uc : uc / ur;
+        sign = (major_cols ? uc : ur) > 0 ? 1 : -1;
+        // Exact diagonals and axes (sin 45° / cos 45° is not exactly 1 in floating point).
+        if (std::fabs(std::fabs(m) - 1.0) < 1e-12)
+            m = m > 0 ? 1.0 : -1.0;
+        if (std::fabs(m) < 1e-12)
+            m = 0.0;
+        return m;
+    };
+    const double r_ref = 0.5 * (h - 1);
+    d.m = slopeAt(r_ref, d.major_cols, d.sign);
+    d.A = d.major_cols ? w : h;
+    d.B = d.major_cols ? h : w;
+    d.c = in.curvature.c_north * d.cos_a * d.cos_a + in.curvature.c_east * d.sin_a * d.sin_a;
+    d.xi.resize(d.A);
+    d.gx.resize(d.A);
+    for (int a = 0; a < d.A; ++a) {
+        double x = d.m * a;
+        double ce = std::ceil(x);
+        d.xi[a] = static_cast<int>(ce);
+        d.gx[a] = ce - x;
+    }
+    d.geographic = metric.geographic();
+    auto stepAtRow = [&](double row) {
+        double e = metric.eastPerCol(row), n = metric.northPerRow(row);
+        return d.major_cols ? std::hypot(e, d.m * n) : std::hypot(d.m * e, n);
+    };
+    if (d.geographic) {
+        d.step_table.resize(h);
+        d.m_row.resize(h);
+        for (int r = 0; r < h; ++r) {
+            d.step_table[r] = stepAtRow(r);
+            bool mc;
+            int sg;
+            double m = slopeAt(r, mc, sg);
+            // A row whose aspect would flip the major axis keeps the lines' axis; |m| ≤ ~1.
+            d.m_row[r] = mc == d.major_cols ? m : d.m;
+        }
+    } else {
+        d.step_m = stepAtRow(r_ref);
+        d.fold.resize(d.A + 1);
+        for (int k = 0; k <= d.A; ++k) {
+            const double s = -k * d.step_m;
+            d.fold[k] = d.c * s * s;
+        }
+        const double step = d.step_m, cc = d.c;
+        buildCrossings(
+            d, d.m, d.A, w,
+            [step, cc](double, double, double t, double& dist, double& drop) {
+                dist = t * step;
+                drop = cc * dist * dist;
+            },
+            d.crossings, d.major_pos);
+        const int k1 = std::min(in.options.exact_steps + 1, d.A + 1);
+        int n_near = d.major_pos[k1];
+        while (n_near > 0 && d.crossings[n_near - 1].dist > in.options.reach_m)
+            --n_near;
+        d.near.assign(d.crossings.data(), n_near, d.major_cols, in.options.observer_height_m);
+        // The crossings within ± r major steps of each tangent point t (majors t − r … t + r,
+        // the minors between majors t − r − 1 and t + r + 1), beyond the near field.
+        const int* mp = d.major_pos.data();
+        const int r = in.options.refine_steps;
+        const int near_end = mp[k1];
+        d.windows.resize(d.A + 1);
+        for (int t = 0; t <= d.A; ++t) {
+            Direction::Window& wv = d.windows[t];
+            wv.lo = std::max(near_end, mp[std::max(t - r - 1, 0)] + 1);
+            wv.hi = mp[std::min(t + r + 1, d.A + 1)] - 1;
+            wv.da_lo = wv.dp_lo = std::numeric_limits<int>::max();
+            wv.da_hi = wv.dp_hi = std::numeric_limits<int>::min();
+            for (int i = wv.lo; i <= wv.hi; ++i) {
+                const Crossing& x = d.crossings[i];
+                wv.da_lo = std::min({wv.da_lo, x.da1, x.da2});
+                wv.da_hi = std::max({wv.da_hi, x.da1, x.da2});
+                wv.dp_lo = std::min({wv.dp_lo, x.dp1, x.dp2});
+                wv.dp_hi = std::max({wv.dp_hi, x.dp1, x.dp2});
+            }
+            wv.dist_hi = wv.hi >= wv.lo ? d.crossings[wv.hi].dist : 0;
+        }
+    }
+    const int x_first = d.xi.front(), x_last = d.xi.back();
+    d.jmin = -static_cast<long>(std::max(x_first, x_last));
+    d.jmax = d.B - 1 - static_cast<long>(std::min(x_first, x_last));
+}
+
+}  // namespace lookfar::horizon_detail::fast
