@@ -22,6 +22,7 @@ struct IntervisState {
     std::string stations;
     std::string matrix;
     std::string lines;
+    bool all_pairs = false;
 };
 
 double round4(double v) {
@@ -65,69 +66,81 @@ void runIntervis(const IntervisState& s) {
     const IntervisResult res = computeIntervisibility(ctx.dem.z, ctx.dem.geometry, ctx.earth,
                                                       stations_in_window, opt, *ctx.progress);
 
-    // Distances and azimuths of every unordered pair (PROJ geodesic; grid azimuths from the map
-    // coordinates, which on a lat/lon grid are the true ones).
+    // Distances and azimuths of a pair (PROJ geodesic; grid azimuths from the map coordinates,
+    // which on a lat/lon grid are the true ones), solved from the lower index to the higher so
+    // that both directions of a pair print the same figures.
     const LonLatOf ll(ctx.dem.crs.wkt);
     const Geodesic geo(ctx.dem.crs.ellipsoid);
     std::vector<MapPoint> lonlat(n);
     for (int i = 0; i < n; ++i)
         lonlat[i] = ll.apply(points[i]);
-    std::vector<PairGeometry> pg(static_cast<std::size_t>(n) * n);
-    for (int i = 0; i < n; ++i) {
-        for (int j = i + 1; j < n; ++j) {
-            const GeodesicLine line =
-                geo.inverse(lonlat[i].x, lonlat[i].y, lonlat[j].x, lonlat[j].y);
-            PairGeometry ij, ji;
-            ij.distance_m = ji.distance_m = line.distance_m;
-            if (g.geographic()) {
-                ij.azimuth_deg = line.azimuth1_deg;
-                ij.back_azimuth_deg = wrap360(line.azimuth2_deg + 180.0);
-            } else {
-                ij.azimuth_deg = wrap360(
-                    std::atan2(points[j].x - points[i].x, points[j].y - points[i].y) * kRadToDeg);
-                ij.back_azimuth_deg = wrap360(ij.azimuth_deg + 180.0);
-            }
-            if (line.distance_m == 0) {
-                ij.azimuth_deg = ij.back_azimuth_deg = std::numeric_limits<double>::quiet_NaN();
-            }
-            ji.azimuth_deg = ij.back_azimuth_deg;
-            ji.back_azimuth_deg = ij.azimuth_deg;
-            pg[static_cast<std::size_t>(i) * n + j] = ij;
-            pg[static_cast<std::size_t>(j) * n + i] = ji;
+    auto pairGeometry = [&](int from, int to) {
+        const int i = std::min(from, to), j = std::max(from, to);
+        const GeodesicLine line = geo.inverse(lonlat[i].x, lonlat[i].y, lonlat[j].x, lonlat[j].y);
+        PairGeometry ij;
+        ij.distance_m = line.distance_m;
+        if (g.geographic()) {
+            ij.azimuth_deg = line.azimuth1_deg;
+            ij.back_azimuth_deg = wrap360(line.azimuth2_deg + 180.0);
+        } else {
+            ij.azimuth_deg = wrap360(
+                std::atan2(points[j].x - points[i].x, points[j].y - points[i].y) * kRadToDeg);
+            ij.back_azimuth_deg = wrap360(ij.azimuth_deg + 180.0);
         }
-    }
+        if (line.distance_m == 0)
+            ij.azimuth_deg = ij.back_azimuth_deg = std::numeric_limits<double>::quiet_NaN();
+        if (from != i)
+            std::swap(ij.azimuth_deg, ij.back_azimuth_deg);
+        return ij;
+    };
 
-    // The matrix: one row per ordered pair.
-    std::string csv = "from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg\n";
+    // The matrix, streamed row by row into its temporary file: one row per ordered pair within
+    // reach (with --all-pairs, every ordered pair).
+    TextStream& matrix = ctx.outputs->openText(s.matrix);
+    matrix.write("from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg\n");
     for (int i = 0; i < n; ++i) {
-        for (int j = 0; j < n; ++j) {
-            if (i == j)
-                continue;
-            const PairVerdict& v = res.at(i, j);
-            const PairGeometry& p = pg[static_cast<std::size_t>(i) * n + j];
-            csv += csvField(stations[i].name) + "," + csvField(stations[j].name) + "," +
-                   (v.visible ? "yes" : "no") + "," + printfFinite("%.3f", v.margin_m) + "," +
-                   printfFinite("%.3f", p.distance_m) + "," + printfFinite("%.4f", p.azimuth_deg) +
-                   "," + printfFinite("%.4f", p.back_azimuth_deg) + "\n";
+        throwIfCancelled(*ctx.progress);
+        std::string rows;
+        auto addRow = [&](int j, const PairVerdict& v) {
+            const PairGeometry p = pairGeometry(i, j);
+            rows += csvField(stations[i].name) + "," + csvField(stations[j].name) + "," +
+                    (v.visible ? "yes" : "no") + "," + printfFinite("%.3f", v.margin_m) + "," +
+                    printfFinite("%.3f", p.distance_m) + "," +
+                    printfFinite("%.4f", p.azimuth_deg) + "," +
+                    printfFinite("%.4f", p.back_azimuth_deg) + "\n";
+        };
+        if (s.all_pairs) {
+            for (int j = 0; j < n; ++j)
+                if (j != i)
+                    addRow(j, res.at(i, j));
+        } else {
+            for (const PairVerdict& v : res.judged[static_cast<std::size_t>(i)])
+                addRow(v.to, v);
         }
+        matrix.write(rows);
     }
 
     // Pairs and stations.
     std::int64_t pairs = 0, judged = 0, both = 0, one_way = 0;
     std::vector<int> sees(n, 0), seen_by(n, 0);
     std::vector<std::pair<int, int>> visible_pairs;
+    pairs = static_cast<std::int64_t>(n) * (n - 1) / 2;
     for (int i = 0; i < n; ++i) {
-        for (int j = 0; j < n; ++j) {
-            if (i != j && res.at(i, j).visible) {
+        for (const PairVerdict& a : res.judged[static_cast<std::size_t>(i)]) {
+            const int j = a.to;
+            if (a.visible) {
                 ++sees[i];
                 ++seen_by[j];
             }
-        }
-        for (int j = i + 1; j < n; ++j) {
-            ++pairs;
-            const PairVerdict &a = res.at(i, j), &b = res.at(j, i);
-            if (a.judged)
-                ++judged;
+            if (j < i) {
+                // Judged only this way round (the reach measured from either end differs by a
+                // rounding): a one-way pair when this way sees.
+                if (a.visible && !res.at(j, i).judged)
+                    ++one_way;
+                continue;
+            }
+            const PairVerdict b = res.at(j, i);
+            ++judged;
             if (a.visible && b.visible) {
                 ++both;
                 visible_pairs.emplace_back(i, j);
@@ -151,7 +164,7 @@ void runIntervis(const IntervisState& s) {
         nlohmann::json features = nlohmann::json::array();
         auto milli = [](double v) { return std::round(v * 1000.0) / 1000.0; };
         for (const auto& [i, j] : visible_pairs) {
-            const PairGeometry& p = pg[static_cast<std::size_t>(i) * n + j];
+            const PairGeometry p = pairGeometry(i, j);
             nlohmann::json line = {
                 {"type", "LineString"},
                 {"coordinates",
@@ -171,7 +184,6 @@ void runIntervis(const IntervisState& s) {
             text += features[k].dump() + (k + 1 < features.size() ? ",\n" : "\n");
         writeTextFile(ctx, s.lines, text + "]}\n");
     }
-    writeTextFile(ctx, s.matrix, csv);
 
     nlohmann::json j = summaryBase(ctx.run);
     j["parameters"]["target_height_m"] = nullptr;  // each target is the other station's height
@@ -243,6 +255,10 @@ Command addIntervisCommand(CLI::App& root) {
         ->type_name("FILE")
         ->required()
         ->group("Output");
+    app->add_flag("--all-pairs", state->all_pairs,
+                  "also list the pairs beyond --reach in the matrix (visible 'no', margin empty); "
+                  "without it the matrix holds the pairs within reach only")
+        ->group("Output");
     app->add_option("--lines", state->lines,
                     "GeoJSON (RFC 7946, WGS 84 lon/lat) with a line for every pair that sees "
                     "each other")
@@ -251,7 +267,8 @@ Command addIntervisCommand(CLI::App& root) {
     app->footer(
         "\nEach station stands at the centre of its DEM cell; the pair i,j is judged by the "
         "sightline rule from i's eye (ground + height) to j's antenna (ground + j's height). "
-        "Pairs beyond --reach are not judged (visible 'no', margin empty). Distances are PROJ "
+        "Pairs beyond --reach are not judged and not listed (with --all-pairs: listed with visible "
+        "'no' and the margin empty). Distances are PROJ "
         "geodesics between the given points; azimuths are grid azimuths (true on lat/lon DEMs)." +
         conventionsText() + cautionText());
     return {app, [state] { runIntervis(*state); }};

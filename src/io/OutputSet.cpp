@@ -82,7 +82,55 @@ bool sameFile(const std::string& a, const std::string& b) {
     return fa.st_dev == fb.st_dev && fa.st_ino == fb.st_ino;
 }
 
+TextStream::TextStream(std::string path) : path_(std::move(path)), temp_(temporaryPathFor(path_)) {
+    file_ = std::fopen(temp_.c_str(), "wb");
+    if (!file_) {
+        int err = errno;
+        throw OutputError(path_ + ": cannot write the file (" +
+                          writeFailureReason(path_, std::strerror(err), err) + ")");
+    }
+}
+
+TextStream::~TextStream() {
+    if (file_)
+        std::fclose(file_);
+}
+
+void TextStream::write(const std::string& text) {
+    if (!file_)
+        throw InternalError("write to a closed text output " + path_);
+    errno = 0;
+    if (std::fwrite(text.data(), 1, text.size(), file_) != text.size()) {
+        int err = errno;
+        throw OutputError(path_ + ": writing failed (" +
+                          writeFailureReason(path_, std::strerror(err), err) + ")");
+    }
+}
+
+void TextStream::close() {
+    if (!file_)
+        return;
+    errno = 0;
+    bool ok = std::fflush(file_) == 0;
+    int err = errno;
+    ok = std::fclose(file_) == 0 && ok;
+    file_ = nullptr;
+    if (!ok) {
+        if (!err)
+            err = errno;
+        throw OutputError(path_ + ": writing failed (" +
+                          writeFailureReason(path_, std::strerror(err), err) + ")");
+    }
+}
+
+TextStream& OutputSet::openText(const std::string& path) {
+    streams_.push_back(std::make_unique<TextStream>(path));
+    entries_.push_back({streams_.back()->temp(), path});  // removed by the destructor from here on
+    return *streams_.back();
+}
+
 OutputSet::~OutputSet() {
+    streams_.clear();  // closes the files before their temporaries are removed
     if (committed_)
         return;
     for (const auto& e : entries_)
@@ -125,6 +173,8 @@ void OutputSet::commit() {
         throw InternalError("an output set was committed twice");
     if (interruptFlag().load())
         throw Interrupted();
+    for (auto& stream : streams_)
+        stream->close();
     // Keep every earlier file under a hidden link until all renames have succeeded.
     std::vector<std::string> backups(entries_.size());
     std::vector<bool> existed(entries_.size(), false);

@@ -3,6 +3,7 @@
 //   d_ij       fast distance between cell centres (LocalFrame of the observer), metres
 #include "lookfar/link/Intervisibility.hpp"
 
+#include <algorithm>
 #include <cmath>
 
 #include "lookfar/core/Errors.hpp"
@@ -10,6 +11,24 @@
 #include "lookfar/viewshed/SightlineRule.hpp"
 
 namespace lookfar {
+
+PairVerdict IntervisResult::at(int from, int to) const {
+    const std::vector<PairVerdict>& row = judged.at(static_cast<std::size_t>(from));
+    auto it = std::lower_bound(row.begin(), row.end(), to,
+                               [](const PairVerdict& v, int j) { return v.to < j; });
+    if (it != row.end() && it->to == to)
+        return *it;
+    PairVerdict none;
+    none.to = to;
+    return none;
+}
+
+std::int64_t IntervisResult::judgedCount() const {
+    std::int64_t count = 0;
+    for (const auto& row : judged)
+        count += static_cast<std::int64_t>(row.size());
+    return count;
+}
 
 IntervisResult computeIntervisibility(const Grid<float>& dem, const GridGeometry& geometry,
                                       const EarthModel& earth,
@@ -26,25 +45,28 @@ IntervisResult computeIntervisibility(const Grid<float>& dem, const GridGeometry
     }
     IntervisResult out;
     out.stations = n;
-    out.pairs.resize(static_cast<std::size_t>(n) * n);
+    out.judged.resize(static_cast<std::size_t>(n));
     progress.begin("intervisibility", n);
     parallelFor(n, progress, [&](std::int64_t si) {
         const int i = static_cast<int>(si);
         const SightlineRule rule(dem, geometry, earth, stations[i]);
         const LocalFrame& frame = rule.frame();
-        PairVerdict* row = out.pairs.data() + static_cast<std::size_t>(i) * n;
+        std::vector<PairVerdict>& row = out.judged[static_cast<std::size_t>(i)];
         for (int j = 0; j < n; ++j) {
             if (j == i)
                 continue;
             const Observer& t = stations[j];
-            PairVerdict& v = row[j];
-            v.distance_m = std::hypot(frame.east(t.col, t.row), frame.north(t.row));
-            if (!(v.distance_m <= options.reach_m))
+            const double d = std::hypot(frame.east(t.col, t.row), frame.north(t.row));
+            if (!(d <= options.reach_m))
                 continue;
             const SightlineVerdict sv = rule.judge(t.col, t.row, t.height_m);
+            PairVerdict v;
+            v.to = j;
+            v.distance_m = d;
             v.judged = true;
             v.visible = sv.visible;
             v.margin_m = sv.margin_m;
+            row.push_back(v);
         }
     });
     progress.end();

@@ -147,27 +147,46 @@ TEST(IntervisCliTest, FlatSeaMastsSeeEachOtherUpToTheSumOfRadioHorizons) {
     EXPECT_EQ(seen["C>A"], "no");
 }
 
-TEST(IntervisCliTest, ReachLeavesFarPairsUnjudged) {
+// Pairs beyond --reach are not judged; the matrix lists them only with --all-pairs (visible
+// "no", margin empty), so a network of thousands of stations with a short reach writes the pairs
+// that matter and not stations² rows.
+TEST(IntervisCliTest, ReachLeavesFarPairsUnjudgedAndUnlisted) {
     ScratchDir dir;
     CliResult r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
-                              testRaster("demo_sites.csv"), "-o", dir.file("m.csv"), "--reach",
-                              "5000", "--json", "--quiet"});
+                              testRaster("demo_sites.csv"), "-o", dir.file("all.csv"), "--reach",
+                              "5000", "--all-pairs", "--json", "--quiet"});
     ASSERT_EQ(r.exit_code, 0) << r.err;
-    int far = 0;
-    for (const auto& f : readCsv(dir.file("m.csv"))) {
+    int far = 0, near = 0, rows = 0;
+    for (const auto& f : readCsv(dir.file("all.csv"))) {
         if (f[0] == "from")
             continue;
-        if (std::stod(f[4]) > 5010) {  // beyond reach (cell-centre distances differ by < 1 m)
+        ++rows;
+        if (f[3].empty()) {
+            EXPECT_GT(std::stod(f[4]), 4990);  // cell-centre distances differ by < 1 m
             EXPECT_EQ(f[2], "no");
-            EXPECT_EQ(f[3], "");
             ++far;
-        } else if (std::stod(f[4]) < 4990) {
-            EXPECT_NE(f[3], "");
+        } else {
+            EXPECT_LT(std::stod(f[4]), 5010);
+            ++near;
         }
     }
-    EXPECT_GT(far, 10);
     const auto j = nlohmann::json::parse(r.out);
+    const int n = j["station_count"].get<int>();
+    EXPECT_EQ(rows, n * (n - 1));
+    EXPECT_GT(far, 10);
+    EXPECT_EQ(near, 2 * j["pairs_within_reach"].get<int>());
     EXPECT_LT(j["pairs_within_reach"].get<int>(), 21);
+
+    // Without --all-pairs: the same rows within reach, and those only.
+    r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                    testRaster("demo_sites.csv"), "-o", dir.file("near.csv"), "--reach", "5000",
+                    "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    std::vector<std::vector<std::string>> expected;
+    for (const auto& f : readCsv(dir.file("all.csv")))
+        if (!f[3].empty() || f[0] == "from")
+            expected.push_back(f);
+    EXPECT_EQ(readCsv(dir.file("near.csv")), expected);
 }
 
 TEST(IntervisCliTest, StationOutsideTheDemNamesTheFileAndLine) {

@@ -7,6 +7,8 @@
 // link until every rename has succeeded, so a failed rename puts every earlier file back. A set
 // destroyed before commit() (an error, an interruption) removes all its temporaries: a failed run
 // leaves neither a partial file nor a mixed set of new and old files.
+#include <cstdio>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -29,6 +31,25 @@ std::string writeFailureReason(const std::string& path, const std::string& detai
 /// paths that do not exist yet, the same name in the same folder (folders compared as files).
 bool sameFile(const std::string& a, const std::string& b);
 
+/// A text output written piece by piece into its temporary file (see OutputSet::openText).
+class TextStream {
+  public:
+    explicit TextStream(std::string path);
+    ~TextStream();
+    TextStream(const TextStream&) = delete;
+    TextStream& operator=(const TextStream&) = delete;
+    /// Appends `text`; throws OutputError (the message says when the disk is full).
+    void write(const std::string& text);
+    /// Closes the file, checking that every byte reached it; throws OutputError.
+    void close();
+    const std::string& temp() const { return temp_; }
+    const std::string& path() const { return path_; }
+
+  private:
+    std::string path_, temp_;
+    std::FILE* file_ = nullptr;
+};
+
 class OutputSet {
   public:
     OutputSet() = default;
@@ -41,6 +62,9 @@ class OutputSet {
     void addRaster(RasterWriter& writer);
     /// Writes `content` to a temporary file for `path` now (throws OutputError).
     void addText(const std::string& path, const std::string& content);
+    /// Opens a text output to be written piece by piece (a large CSV streamed row by row rather
+    /// than held in memory); commit() closes it. The stream lives as long as the set.
+    TextStream& openText(const std::string& path);
     /// Takes charge of a finished temporary file `temp` that becomes `path` on commit().
     void adopt(const std::string& temp, const std::string& path);
 
@@ -58,6 +82,7 @@ class OutputSet {
         std::string path;
     };
     std::vector<Entry> entries_;
+    std::vector<std::unique_ptr<TextStream>> streams_;
     bool committed_ = false;
 };
 

@@ -33,21 +33,27 @@ struct IntervisOptions {
 };
 
 struct PairVerdict {
+    int to = -1;           ///< the station seen (index)
     bool judged = false;   ///< within reach (always false on the diagonal)
     bool visible = false;  ///< margin ≥ 0
     double margin_m = std::numeric_limits<double>::quiet_NaN();  ///< see header; NaN if not judged
-    double distance_m = 0;                                       ///< d_ij, metres
+    double distance_m = std::numeric_limits<double>::quiet_NaN();  ///< d_ij, metres (judged)
 };
 
+/// The judged pairs only: memory follows the pairs within reach, not stations².
 struct IntervisResult {
     int stations = 0;
-    std::vector<PairVerdict> pairs;  ///< stations × stations, row i = seen from station i
-    const PairVerdict& at(int from, int to) const {
-        return pairs[static_cast<std::size_t>(from) * stations + to];
-    }
+    /// judged[i]: the pairs i → j within reach, by increasing j.
+    std::vector<std::vector<PairVerdict>> judged;
+    /// The verdict of i → j; a pair not judged (beyond reach, or i = j) has judged = false, a NaN
+    /// margin and a NaN distance.
+    PairVerdict at(int from, int to) const;
+    /// Number of ordered pairs judged.
+    std::int64_t judgedCount() const;
 };
 
-/// Judges every ordered pair (OpenMP over observing stations; identical for any thread count).
+/// Judges every ordered pair within reach (OpenMP over observing stations; identical for any
+/// thread count).
 /// Each station's `height_m` is its eye when it observes and its target when it is observed.
 /// Throws InputError when a station is outside the DEM or on no-data, Interrupted when the
 /// progress sink is cancelled.
