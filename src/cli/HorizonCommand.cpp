@@ -168,8 +168,9 @@ void runGrid(const HorizonState& st) {
         throw UsageError("--directions: " + std::to_string(st.directions) +
                          " is outside 1 to 3600");
     }
-    RunContext ctx = prepareRun("horizon", st.options,
-                                {{"-o", st.output}, {"--distance", st.distance}, {"--svf", st.svf}, {"--dip", st.dip}});
+    RunContext ctx = prepareRun(
+        "horizon", st.options,
+        {{"-o", st.output}, {"--distance", st.distance}, {"--svf", st.svf}, {"--dip", st.dip}});
     const int n = opt.directions;
     opt.observer_height_m = ctx.observer_height_m;
     opt.reach_m = ctx.reach_m;

@@ -42,7 +42,8 @@ struct PairGeometry {
 
 void runIntervis(const IntervisState& s) {
     const CommonOptions& o = s.options;
-    RunContext ctx = prepareRun("intervis", o, {{"-o", s.matrix}, {"--lines", s.lines}}, {s.stations}, DemCells::Later);
+    RunContext ctx = prepareRun("intervis", o, {{"-o", s.matrix}, {"--lines", s.lines}},
+                                {s.stations}, DemCells::Later);
     ctx.run.method = "reference";
     ctx.run.extra["STATIONS"] = s.stations;
     const GridGeometry& g = ctx.grid;
@@ -105,9 +106,8 @@ void runIntervis(const IntervisState& s) {
             const PairGeometry p = pairGeometry(i, j);
             rows += csvField(stations[i].name) + "," + csvField(stations[j].name) + "," +
                     (v.visible ? "yes" : "no") + "," + printfFinite("%.3f", v.margin_m) + "," +
-                    printfFinite("%.3f", p.distance_m) + "," +
-                    printfFinite("%.4f", p.azimuth_deg) + "," +
-                    printfFinite("%.4f", p.back_azimuth_deg) + "\n";
+                    printfFinite("%.3f", p.distance_m) + "," + printfFinite("%.4f", p.azimuth_deg) +
+                    "," + printfFinite("%.4f", p.back_azimuth_deg) + "\n";
         };
         if (s.all_pairs) {
             for (int j = 0; j < n; ++j)

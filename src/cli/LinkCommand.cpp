@@ -265,8 +265,8 @@ void runLink(const LinkState& s) {
     }
     const MapPoint from_in = parsePoint(s.from, "--from");
     const MapPoint to_in = parsePoint(s.to, "--to");
-    RunContext ctx = prepareRun("link", o, {{"--csv", s.csv}, {"--plot", s.plot}}, {},
-                                DemCells::Later);
+    RunContext ctx =
+        prepareRun("link", o, {{"--csv", s.csv}, {"--plot", s.plot}}, {}, DemCells::Later);
     ctx.run.observer_height_m = from_h;
     ctx.run.target_height_m = to_h;
     ctx.run.method = "exact";

@@ -26,7 +26,7 @@ struct SelectState {
     std::string candidates;
     int count = 0;
     CLI::Option* count_opt = nullptr;  ///< given or not (0 is refused, not "no count")
-    std::string coverage;  ///< empty = no coverage goal
+    std::string coverage;              ///< empty = no coverage goal
     std::string output;
     std::string csv;
     std::string weight;
@@ -113,7 +113,8 @@ void runSelect(const SelectState& s) {
     std::vector<std::string> inputs = {s.candidates};
     if (!s.weight.empty())
         inputs.push_back(s.weight);
-    RunContext ctx = prepareRun("select", o, {{"-o", s.output}, {"--csv", s.csv}}, inputs, DemCells::Later);
+    RunContext ctx =
+        prepareRun("select", o, {{"-o", s.output}, {"--csv", s.csv}}, inputs, DemCells::Later);
     const PlacedSites placed =
         placeSitesCsv(ctx, s.candidates, "candidate", "the ranking needs unique names");
     const std::vector<Site>& sites = placed.rows;

@@ -101,7 +101,8 @@ void runViewshed(const ViewshedState& st) {
     if (single)
         given = parsePoint(st.observer, "--observer");  // exit 2 before any file is touched
 
-    std::vector<NamedPath> outputs = {{"-o", st.output}, {"--margin", st.margin}, {"--angle", st.angle}};
+    std::vector<NamedPath> outputs = {
+        {"-o", st.output}, {"--margin", st.margin}, {"--angle", st.angle}};
     std::vector<std::string> extra_inputs;
     if (!single)
         extra_inputs.push_back(st.sites);

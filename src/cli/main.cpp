@@ -89,7 +89,8 @@ std::string parseErrorSentence(const CLI::ParseError& e, const CLI::App& app,
                    " exclude each other: give one of them";
         }
     }
-    if (dynamic_cast<const CLI::ConversionError*>(&e) && what.rfind("Could not convert: ", 0) == 0) {
+    if (dynamic_cast<const CLI::ConversionError*>(&e) &&
+        what.rfind("Could not convert: ", 0) == 0) {
         const std::string rest = what.substr(19);
         const auto eq = rest.find(" = ");
         if (eq != std::string::npos) {
@@ -145,8 +146,8 @@ int main(int argc, char** argv) {
                 known = known || c.app->get_name() == args[1];
             if (!known) {
                 std::cerr << "lookfar: help: '" << echoText(args[1])
-                          << "' is not a command of lookfar; the commands are "
-                          << commandList(app) << "\n";
+                          << "' is not a command of lookfar; the commands are " << commandList(app)
+                          << "\n";
                 return kExitUsage;
             }
             args = {args[1]};

@@ -38,10 +38,13 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
     ParallelForOptions loop;
     loop.chunk = 16;
     loop.report = false;
-    parallelFor(n, silentProgress(), [&](std::int64_t i) {
-        p.directions[i].azimuth_deg = static_cast<double>(i) * step_deg;
-        p.directions[i].sample = scan.referenceAt(col, row, static_cast<double>(i) * step_deg);
-    }, loop);
+    parallelFor(
+        n, silentProgress(),
+        [&](std::int64_t i) {
+            p.directions[i].azimuth_deg = static_cast<double>(i) * step_deg;
+            p.directions[i].sample = scan.referenceAt(col, row, static_cast<double>(i) * step_deg);
+        },
+        loop);
 
     p.lowest_angle_deg = p.lowest_azimuth_deg = p.lowest_distance_m = nan;
     p.highest_angle_deg = p.highest_azimuth_deg = p.highest_distance_m = nan;

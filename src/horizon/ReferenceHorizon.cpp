@@ -51,28 +51,31 @@ void referenceScan(const EngineInput& in, HorizonSink& sink, SummaryAccumulator&
             const int rows = std::min(kStripRows, h - row0);
             ParallelForOptions rows_loop;
             rows_loop.report = false;  // progress counts strips, below
-            parallelFor(rows, progress, [&](std::int64_t ri) {
-                const int rr = static_cast<int>(ri);
-                const int r = row0 + rr;
-                for (int c = 0; c < w; ++c) {
-                    const std::size_t k = static_cast<std::size_t>(rr) * w + c;
-                    const float ground = dem(c, r);
-                    if (std::isnan(ground)) {
-                        angle[k] = distance[k] = nan;
-                        continue;
+            parallelFor(
+                rows, progress,
+                [&](std::int64_t ri) {
+                    const int rr = static_cast<int>(ri);
+                    const int r = row0 + rr;
+                    for (int c = 0; c < w; ++c) {
+                        const std::size_t k = static_cast<std::size_t>(rr) * w + c;
+                        const float ground = dem(c, r);
+                        if (std::isnan(ground)) {
+                            angle[k] = distance[k] = nan;
+                            continue;
+                        }
+                        RayResult ray = marchRay(dem, in.metric, in.curvature, c, r,
+                                                 ground + in.options.observer_height_m, sin_a,
+                                                 cos_a, in.options.reach_m);
+                        if (!ray.found) {
+                            angle[k] = distance[k] = nan;
+                            continue;
+                        }
+                        angle[k] = static_cast<float>(std::atan(ray.t) * kRadToDeg);
+                        distance[k] = static_cast<float>(ray.distance_m);
+                        acc.add(dem.index(c, r), angle[k], ray.t);
                     }
-                    RayResult ray = marchRay(dem, in.metric, in.curvature, c, r,
-                                             ground + in.options.observer_height_m, sin_a, cos_a,
-                                             in.options.reach_m);
-                    if (!ray.found) {
-                        angle[k] = distance[k] = nan;
-                        continue;
-                    }
-                    angle[k] = static_cast<float>(std::atan(ray.t) * kRadToDeg);
-                    distance[k] = static_cast<float>(ray.distance_m);
-                    acc.add(dem.index(c, r), angle[k], ray.t);
-                }
-            }, rows_loop);
+                },
+                rows_loop);
             if (sink.wantsRectangles()) {
                 for (int c0 = 0; c0 < w; c0 += kRectCols) {
                     sink.rectangle(i, c0, row0, std::min(kRectCols, w - c0), rows, w,

@@ -66,7 +66,8 @@ std::string writeFailureReason(const std::string& path, const std::string& detai
 bool sameFile(const std::string& a, const std::string& b) {
     if (a.empty() || b.empty())
         return false;
-    struct stat sa {}, sb {};
+    struct stat sa {
+    }, sb{};
     bool ea = stat(a.c_str(), &sa) == 0;
     bool eb = stat(b.c_str(), &sb) == 0;
     if (ea && eb)
@@ -76,7 +77,8 @@ bool sameFile(const std::string& a, const std::string& b) {
     // Neither exists yet: the same name in the same folder.
     if (nameOf(a) != nameOf(b))
         return false;
-    struct stat fa {}, fb {};
+    struct stat fa {
+    }, fb{};
     if (stat(folderOf(a).c_str(), &fa) != 0 || stat(folderOf(b).c_str(), &fb) != 0)
         return folderOf(a) == folderOf(b);
     return fa.st_dev == fb.st_dev && fa.st_ino == fb.st_ino;

@@ -48,22 +48,22 @@ TEST(InputValidationCliTest, SiteNameThatIsNotUtf8IsBadInputNamingFileLineAndByt
     const std::string csv =
         writeText(in, "latin1.csv", "name,x,y\nA,431500,5588500\nB\xE9n\xE9,431600,5588500\n");
     const std::vector<std::string> want = {"latin1.csv", "line 3", "0xE9", "UTF-8"};
-    expectRefused({"viewshed", kCone, "--sites", csv, "-o", out.file("c.tif"), "--json",
-                   "--quiet"},
+    expectRefused({"viewshed", kCone, "--sites", csv, "-o", out.file("c.tif"), "--json", "--quiet"},
                   3, want, out);
     expectRefused({"intervis", kCone, "--stations", csv, "-o", out.file("m.csv"), "--quiet"}, 3,
                   want, out);
-    expectRefused({"select", kCone, "--candidates", csv, "--count", "1", "-o",
-                   out.file("c.tif"), "--csv", out.file("r.csv"), "--quiet"},
+    expectRefused({"select", kCone, "--candidates", csv, "--count", "1", "-o", out.file("c.tif"),
+                   "--csv", out.file("r.csv"), "--quiet"},
                   3, want, out);
 }
 
 TEST(InputValidationCliTest, Utf8SitesFileWithAByteOrderMarkIsRead) {
     ScratchDir in, out;
-    const std::string csv = writeText(
-        in, "bom.csv", "\xEF\xBB\xBFname,x,y\nA,431500,5588500\nB\xC3\xA9n\xC3\xA9,431600,5588500\n");
-    const CliResult r = runLookfar({"viewshed", kCone, "--sites", csv, "-o", out.file("c.tif"),
-                                    "--json", "--quiet"});
+    const std::string csv =
+        writeText(in, "bom.csv",
+                  "\xEF\xBB\xBFname,x,y\nA,431500,5588500\nB\xC3\xA9n\xC3\xA9,431600,5588500\n");
+    const CliResult r = runLookfar(
+        {"viewshed", kCone, "--sites", csv, "-o", out.file("c.tif"), "--json", "--quiet"});
     ASSERT_EQ(r.exit_code, 0) << r.err;
     EXPECT_NE(r.out.find("B\xC3\xA9n\xC3\xA9"), std::string::npos) << r.out;
 }
@@ -85,8 +85,7 @@ TEST(InputValidationCliTest, PathsThatAreNotUtf8AreEscapedInTheJsonSummary) {
     ASSERT_EQ(r.exit_code, 0) << r.err;
     const auto j = nlohmann::json::parse(r.out);
     EXPECT_NE(j["dem"]["path"].get<std::string>().find("d\\xE9m.tif"), std::string::npos);
-    EXPECT_NE(j["outputs"]["visibility"].get<std::string>().find("v\\xE9.tif"),
-              std::string::npos);
+    EXPECT_NE(j["outputs"]["visibility"].get<std::string>().find("v\\xE9.tif"), std::string::npos);
     EXPECT_TRUE(nlohmann::json::accept(readFile(dir.file("s\xE9.json"))));
     EXPECT_TRUE(fileExists(dir.file("v\xE9.tif")));
 }
@@ -104,7 +103,7 @@ void expectNoLibraryWords(const std::string& err) {
 }
 
 std::vector<std::string> linkArgs(std::vector<std::string> extra) {
-    std::vector<std::string> args = {"link", kCone, "--from", "431500,5588500", "--to",
+    std::vector<std::string> args = {"link",           kCone,    "--from", "431500,5588500", "--to",
                                      "432500,5588500", "--json", "--quiet"};
     args.insert(args.end(), extra.begin(), extra.end());
     return args;
@@ -129,8 +128,7 @@ TEST(InputValidationCliTest, EarthRadiusWithoutTheSphereModelIsAUsageError) {
     const CliResult r = runLookfar(
         linkArgs({"--earth-model", "sphere", "--earth-radius", "1000km", "--refraction", "0.2"}));
     ASSERT_EQ(r.exit_code, 0) << r.err;
-    EXPECT_NEAR(nlohmann::json::parse(r.out)["effective_radius_m"].get<double>(), 1e6 / 0.8,
-                1e-6);
+    EXPECT_NEAR(nlohmann::json::parse(r.out)["effective_radius_m"].get<double>(), 1e6 / 0.8, 1e-6);
 }
 
 TEST(InputValidationCliTest, RefractionThatIsNotADecimalNamesTheOptionAndTheRange) {
@@ -170,8 +168,8 @@ TEST(InputValidationCliTest, NumbersOutOfRangeNameTheOptionAndTheRangeInFewWords
         EXPECT_LT(firstLine(r.err).size(), 160u) << r.err;
         expectNoLibraryWords(r.err);
     }
-    const CliResult d = runLookfar({"horizon", kCone, "-o", out.file("h.tif"), "--directions",
-                                    "1.5", "--quiet"});
+    const CliResult d =
+        runLookfar({"horizon", kCone, "-o", out.file("h.tif"), "--directions", "1.5", "--quiet"});
     EXPECT_EQ(d.exit_code, 2);
     EXPECT_NE(firstLine(d.err).find("--directions: '1.5' is not a whole number from 1 to 3600"),
               std::string::npos)

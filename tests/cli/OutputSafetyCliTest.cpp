@@ -28,8 +28,8 @@ void writeText(const std::string& path, const std::string& text) {
 
 TEST(OutputSafetyCliTest, RasterAndSummaryOnTheSameFileAreRefused) {
     ScratchDir out;
-    CliResult r = runLookfar({"viewshed", kDemo, "--observer", kObserver, "-o", out.file("same.tif"),
-                              "--summary", out.file("same.tif"), "--quiet"});
+    CliResult r = runLookfar({"viewshed", kDemo, "--observer", kObserver, "-o",
+                              out.file("same.tif"), "--summary", out.file("same.tif"), "--quiet"});
     EXPECT_EQ(r.exit_code, 2) << r.err;
     EXPECT_NE(firstLine(r.err).find("-o"), std::string::npos) << r.err;
     EXPECT_NE(firstLine(r.err).find("--summary"), std::string::npos) << r.err;
@@ -40,9 +40,8 @@ TEST(OutputSafetyCliTest, RasterAndSummaryOnTheSameFileAreRefused) {
 TEST(OutputSafetyCliTest, TwoSpellingsOfOnePathAreRefused) {
     ScratchDir out;
     writeText(out.file("a.tif"), "earlier");
-    CliResult r =
-        runLookfar({"viewshed", kDemo, "--observer", kObserver, "-o", out.file("a.tif"),
-                    "--margin", out.path() + "/./a.tif", "--overwrite", "--quiet"});
+    CliResult r = runLookfar({"viewshed", kDemo, "--observer", kObserver, "-o", out.file("a.tif"),
+                              "--margin", out.path() + "/./a.tif", "--overwrite", "--quiet"});
     EXPECT_EQ(r.exit_code, 2) << r.err;
     EXPECT_NE(firstLine(r.err).find("--margin"), std::string::npos) << r.err;
     EXPECT_EQ(readFile(out.file("a.tif")), "earlier");
@@ -70,9 +69,9 @@ TEST(OutputSafetyCliTest, FullDiskKeepsEveryEarlierFile) {
     const std::vector<std::string> names = {"v.tif", "m.tif", "a.tif"};
     for (const auto& n : names)
         writeText(mnt + "/" + n, "earlier " + n);
-    CliResult r = runLookfar({"viewshed", kDemo, "--observer", kObserver, "-o", mnt + "/v.tif",
-                              "--margin", mnt + "/m.tif", "--angle", mnt + "/a.tif",
-                              "--overwrite", "--quiet"});
+    CliResult r =
+        runLookfar({"viewshed", kDemo, "--observer", kObserver, "-o", mnt + "/v.tif", "--margin",
+                    mnt + "/m.tif", "--angle", mnt + "/a.tif", "--overwrite", "--quiet"});
     EXPECT_EQ(r.exit_code, 4) << r.err;
     EXPECT_NE(firstLine(r.err).find("no space left on device"), std::string::npos) << r.err;
     for (const auto& n : names)

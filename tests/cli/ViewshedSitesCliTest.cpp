@@ -276,5 +276,5 @@ INSTANTIATE_TEST_SUITE_P(Signals, InterruptCliTest, ::testing::Values(SIGINT, SI
                          [](const ::testing::TestParamInfo<int>& param) {
                              return std::string(param.param == SIGINT    ? "SIGINT"
                                                 : param.param == SIGTERM ? "SIGTERM"
-                                                                        : "SIGHUP");
+                                                                         : "SIGHUP");
                          });

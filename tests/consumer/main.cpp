@@ -22,8 +22,8 @@ int check(lookfar::ViewshedMethod method, const char* name) {
     lookfar::Grid<float> dem(n, n, 0.0f);
     for (int row = 0; row < n; ++row)
         dem(wall_col, row) = 10.0f;
-    const lookfar::GridGeometry geometry(n, n, {400000.0, 10.0, 0.0, 5600000.0, 0.0, -10.0},
-                                         false, 1.0, lookfar::Ellipsoid::wgs84());
+    const lookfar::GridGeometry geometry(n, n, {400000.0, 10.0, 0.0, 5600000.0, 0.0, -10.0}, false,
+                                         1.0, lookfar::Ellipsoid::wgs84());
     const lookfar::EarthModel earth(lookfar::EarthShape::Flat);
     lookfar::Observer eye;
     eye.name = "consumer";

@@ -78,9 +78,9 @@ TEST(OutputSetTest, AFailedRenamePutsEveryEarlierFileBack) {
 TEST(OutputSetTest, SameFileComparesFilesNotStrings) {
     ScratchDir dir;
     EXPECT_TRUE(lookfar::sameFile(dir.file("x.tif"), dir.path() + "/./x.tif"));
-    EXPECT_TRUE(lookfar::sameFile(dir.file("x.tif"), dir.path() + "/../" +
-                                                         dir.path().substr(dir.path().rfind('/') + 1) +
-                                                         "/x.tif"));
+    EXPECT_TRUE(lookfar::sameFile(
+        dir.file("x.tif"),
+        dir.path() + "/../" + dir.path().substr(dir.path().rfind('/') + 1) + "/x.tif"));
     EXPECT_FALSE(lookfar::sameFile(dir.file("x.tif"), dir.file("y.tif")));
     writeText(dir.file("x.tif"), "x");
     ASSERT_EQ(link(dir.file("x.tif").c_str(), dir.file("hard.tif").c_str()), 0);

@@ -18,14 +18,14 @@ TEST(TextTest, WellFormedUtf8IsAcceptedWhateverItsScript) {
 // RFC 3629 section 4: C0, C1 and F5..FF never appear; E0 needs A0..BF next (no overlong form),
 // ED needs 80..9F (no surrogates), F0 needs 90..BF, F4 needs 80..8F (nothing above U+10FFFF).
 TEST(TextTest, MalformedUtf8IsFoundAtItsFirstBadByte) {
-    EXPECT_EQ(invalidUtf8Offset("B\xE9n\xE9"), 1u);              // Latin-1 é
-    EXPECT_EQ(invalidUtf8Offset("ab\xC0\xAF"), 2u);              // overlong '/'
-    EXPECT_EQ(invalidUtf8Offset("\xE0\x80\xAF"), 0u);            // overlong, 3 bytes
-    EXPECT_EQ(invalidUtf8Offset("x\xED\xA0\x80"), 1u);           // surrogate U+D800
-    EXPECT_EQ(invalidUtf8Offset("\xF4\x90\x80\x80"), 0u);        // U+110000
-    EXPECT_EQ(invalidUtf8Offset("\xF5\x80\x80\x80"), 0u);        // F5 never appears
-    EXPECT_EQ(invalidUtf8Offset("ok\xE6\x97"), 2u);              // cut short
-    EXPECT_EQ(invalidUtf8Offset("\x80"), 0u);                    // lone continuation byte
+    EXPECT_EQ(invalidUtf8Offset("B\xE9n\xE9"), 1u);        // Latin-1 é
+    EXPECT_EQ(invalidUtf8Offset("ab\xC0\xAF"), 2u);        // overlong '/'
+    EXPECT_EQ(invalidUtf8Offset("\xE0\x80\xAF"), 0u);      // overlong, 3 bytes
+    EXPECT_EQ(invalidUtf8Offset("x\xED\xA0\x80"), 1u);     // surrogate U+D800
+    EXPECT_EQ(invalidUtf8Offset("\xF4\x90\x80\x80"), 0u);  // U+110000
+    EXPECT_EQ(invalidUtf8Offset("\xF5\x80\x80\x80"), 0u);  // F5 never appears
+    EXPECT_EQ(invalidUtf8Offset("ok\xE6\x97"), 2u);        // cut short
+    EXPECT_EQ(invalidUtf8Offset("\x80"), 0u);              // lone continuation byte
     EXPECT_EQ(describeInvalidUtf8("B\xE9n"), "byte 0xE9 at byte 2");
 }
 
