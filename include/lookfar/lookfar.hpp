@@ -50,6 +50,7 @@
 #include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/RasterWriter.hpp"
 #include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/io/VectorOutput.hpp"
 
 // report
 #include "lookfar/report/Summary.hpp"
