@@ -6,6 +6,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <atomic>
 #include <cerrno>
 #include <cstdio>
@@ -31,7 +32,47 @@ GDALDataType gdalType(PixelType t) {
     return GDT_Float32;
 }
 
+const char* resamplingName(Overviews o) {
+    return o == Overviews::Average ? "AVERAGE" : "NEAREST";
+}
+
+// Overview factors 2, 4, 8, … until the smallest level fits in one 256-cell block.
+std::vector<int> overviewFactors(int width, int height) {
+    std::vector<int> f;
+    const int longest = std::max(width, height);
+    for (int k = 2; (longest + k / 2 - 1) / (k / 2) > 256; k *= 2)
+        f.push_back(k);
+    return f;
+}
+
+std::uint8_t mix(std::uint8_t a, std::uint8_t b, double t) {
+    return static_cast<std::uint8_t>(a + (b - a) * t + 0.5);
+}
+
 }  // namespace
+
+std::vector<Rgba> classPalette() {
+    std::vector<Rgba> p(256, Rgba{0, 0, 0, 0});
+    p[0] = {96, 108, 128, 255};  // hidden: slate blue-grey
+    p[1] = {238, 170, 40, 255};  // visible: amber
+    return p;
+}
+
+std::vector<Rgba> countPalette(int max_count) {
+    // Three stops of our own: pale sand, copper, deep plum.
+    const Rgba stops[3] = {{240, 224, 176, 255}, {196, 110, 50, 255}, {84, 28, 84, 255}};
+    std::vector<Rgba> p(static_cast<std::size_t>(std::max(max_count, 1)) + 1);
+    p[0] = {200, 200, 200, 255};
+    for (int v = 1; v <= max_count; ++v) {
+        const double t = max_count > 1 ? 2.0 * (v - 1) / (max_count - 1) : 1.0;
+        const int i = t >= 1.0 ? 1 : 0;
+        const double u = t - i;
+        p[v] = {mix(stops[i][0], stops[i + 1][0], u), mix(stops[i][1], stops[i + 1][1], u),
+                mix(stops[i][2], stops[i + 1][2], u), 255};
+    }
+    // No data (65535) stays transparent: GDAL pads the table with {0, 0, 0, 0}.
+    return p;
+}
 
 std::vector<std::string> defaultCreationOptions(PixelType type) {
     return {"TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256", "COMPRESS=DEFLATE",
@@ -125,6 +166,18 @@ RasterWriter::RasterWriter(RasterSpec spec) : spec_(std::move(spec)) {
         if (!spec_.unit_type.empty())
             GDALSetRasterUnitType(band, spec_.unit_type.c_str());
     }
+    if (!spec_.palette.empty() && spec_.type != PixelType::Float32) {
+        GDALColorTableH table = GDALCreateColorTable(GPI_RGB);
+        for (std::size_t i = 0; i < spec_.palette.size(); ++i) {
+            const GDALColorEntry e{spec_.palette[i][0], spec_.palette[i][1], spec_.palette[i][2],
+                                   spec_.palette[i][3]};
+            GDALSetColorEntry(table, static_cast<int>(i), &e);
+        }
+        GDALRasterBandH band = GDALGetRasterBand(ds, 1);
+        GDALSetRasterColorTable(band, table);
+        GDALSetRasterColorInterpretation(band, GCI_PaletteIndex);
+        GDALDestroyColorTable(table);
+    }
 }
 
 RasterWriter::~RasterWriter() {
@@ -190,6 +243,14 @@ std::string RasterWriter::finish() {
     dataset_ = nullptr;
     CPLErrorReset();
     errno = 0;
+    const bool cog = spec_.layout == RasterLayout::Cog;
+    if (!cog && spec_.overviews != Overviews::None) {
+        auto factors = overviewFactors(spec_.width, spec_.height);
+        if (!factors.empty())
+            GDALBuildOverviews(ds, resamplingName(spec_.overviews),
+                               static_cast<int>(factors.size()), factors.data(), 0, nullptr,
+                               nullptr, nullptr);
+    }
     GDALFlushCache(ds);
     GDALClose(ds);
     int err = errno;
@@ -197,8 +258,53 @@ std::string RasterWriter::finish() {
         throw OutputError(spec_.path + ": finishing the file failed (" +
                           writeFailureReason(spec_.path, io_detail::lastGdalError(), err) + ")");
     }
+    if (cog)
+        rewriteAsCog();
     handed_over_ = true;
     return temp_path_;
+}
+
+void RasterWriter::rewriteAsCog() {
+    // The COG driver only copies: the finished GeoTIFF is copied into the cloud-optimised
+    // layout (overviews built on the way), then removed.
+    GDALDriverH drv = GDALGetDriverByName("COG");
+    if (!drv)
+        throw InternalError("GDAL has no COG driver");
+    const std::string plain = temp_path_;
+    const std::string cog_temp = temporaryPathFor(spec_.path, ".tif");
+    GDALDatasetH src = GDALOpen(plain.c_str(), GA_ReadOnly);
+    if (!src)
+        throw OutputError(spec_.path + ": reopening the finished file failed (" +
+                          io_detail::lastGdalError() + ")");
+    const Overviews o = spec_.overviews == Overviews::None ? Overviews::Nearest : spec_.overviews;
+    char** copts = nullptr;
+    copts = CSLSetNameValue(copts, "COMPRESS", "DEFLATE");
+    copts = CSLSetNameValue(copts, "PREDICTOR", "YES");
+    copts = CSLSetNameValue(copts, "BLOCKSIZE", "256");
+    copts = CSLSetNameValue(copts, "BIGTIFF", "IF_SAFER");
+    copts = CSLSetNameValue(copts, "NUM_THREADS", "ALL_CPUS");
+    copts = CSLSetNameValue(copts, "RESAMPLING", resamplingName(o));
+    copts = CSLSetNameValue(copts, "OVERVIEW_RESAMPLING", resamplingName(o));
+    for (const auto& u : spec_.creation_options) {
+        const auto eq = u.find('=');
+        if (eq != std::string::npos)
+            copts = CSLSetNameValue(copts, u.substr(0, eq).c_str(), u.substr(eq + 1).c_str());
+    }
+    CPLErrorReset();
+    errno = 0;
+    GDALDatasetH out = GDALCreateCopy(drv, cog_temp.c_str(), src, FALSE, copts, nullptr, nullptr);
+    CSLDestroy(copts);
+    GDALClose(src);
+    std::remove(plain.c_str());
+    temp_path_ = cog_temp;
+    if (out)
+        GDALClose(out);
+    const int err = errno;
+    if (!out || CPLGetLastErrorType() >= CE_Failure) {
+        std::remove(cog_temp.c_str());
+        throw OutputError(spec_.path + ": writing the cloud-optimised GeoTIFF failed (" +
+                          writeFailureReason(spec_.path, io_detail::lastGdalError(), err) + ")");
+    }
 }
 
 void RasterWriter::commit() {

@@ -3,6 +3,8 @@
 // folder, finished by finish() and renamed into place with the run's other outputs by an
 // OutputSet (or by commit() alone); a writer destroyed before finish() (an error, Ctrl-C) removes
 // its temporary file, so no partial file is ever left at the output path.
+#include <array>
+#include <cstdint>
 #include <map>
 #include <memory>
 #include <string>
@@ -13,6 +15,17 @@
 namespace lookfar {
 
 enum class PixelType { Byte, UInt16, Float32 };
+
+/// How the file is laid out: a tiled GeoTIFF, or a cloud-optimised GeoTIFF (tiles and
+/// overviews in the order a reader over HTTP fetches them; always with overviews).
+enum class RasterLayout { GTiff, Cog };
+
+/// Reduced-resolution copies inside the file: none, nearest (classes and counts keep their
+/// values) or average (continuous values).
+enum class Overviews { None, Nearest, Average };
+
+/// One colour of a palette: red, green, blue, alpha (0 transparent … 255 opaque).
+using Rgba = std::array<std::uint8_t, 4>;
 
 struct RasterSpec {
     std::string path;
@@ -27,7 +40,18 @@ struct RasterSpec {
     std::map<std::string, std::string> metadata;  ///< dataset metadata, e.g. LOOKFAR_*
     std::vector<std::string> creation_options;    ///< KEY=VALUE; defaults when empty
     std::string unit_type;                        ///< band unit type ("m", "deg"), optional
+    /// Colour table of band 1 (Byte and UInt16 only): entry i colours value i. Empty: none.
+    std::vector<Rgba> palette;
+    RasterLayout layout = RasterLayout::GTiff;
+    Overviews overviews = Overviews::None;  ///< a Cog layout without them uses Nearest
 };
+
+/// lookfar's colours for a visibility class layer (0 hidden, 1 visible or served, 255 no data),
+/// docs/outputs.md: 0 slate blue-grey, 1 amber, 255 transparent.
+std::vector<Rgba> classPalette();
+/// lookfar's ramp for a count layer with counts 0…max_count and no data at 65535: 0 pale grey,
+/// then from pale sand through copper to deep plum at max_count; no data transparent.
+std::vector<Rgba> countPalette(int max_count);
 
 /// lookfar's default GeoTIFF creation options for a pixel type: tiled, DEFLATE, predictor,
 /// compressed on every processor.
@@ -76,6 +100,8 @@ class RasterWriter {
     void commit();
 
   private:
+    void rewriteAsCog();
+
     RasterSpec spec_;
     std::string temp_path_;
     void* dataset_ = nullptr;  // GDALDatasetH
