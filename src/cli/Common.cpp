@@ -336,13 +336,7 @@ RunContext prepareRun(const std::string& command, const CommonOptions& options,
     }
     if (!options.crs.empty())
         validateCrs(options.crs, "--crs");
-    for (const auto& co : options.creation_options) {
-        std::string key, value;
-        if (!splitKeyValue(co, &key, &value)) {
-            throw UsageError("--co: '" + echoText(co) +
-                             "' is not KEY=VALUE (a KEY of letters, digits and _)");
-        }
-    }
+    checkCreationOptions(options.creation_options, "--co");  // GDAL's own list, before any work
 #ifdef _OPENMP
     if (options.threads > 0)
         omp_set_num_threads(options.threads);

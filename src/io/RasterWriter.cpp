@@ -10,10 +10,12 @@
 #include <atomic>
 #include <cerrno>
 #include <cstdio>
+#include <cstdlib>
 
 #include "GdalSupport.hpp"
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/Progress.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/io/OutputSet.hpp"
 
 namespace lookfar {
@@ -79,6 +81,46 @@ std::vector<std::string> defaultCreationOptions(PixelType type) {
             type == PixelType::Float32 ? "PREDICTOR=3" : "PREDICTOR=2", "BIGTIFF=IF_SAFER",
             // Blocks are compressed on every processor (the file's pixels are the same as on one).
             "NUM_THREADS=ALL_CPUS"};
+}
+
+void checkCreationOptions(const std::vector<std::string>& options, const std::string& option) {
+    io_detail::ensureGdal();
+    GDALDriverH drv = GDALGetDriverByName("GTiff");
+    for (const auto& co : options) {
+        std::string key, value;
+        if (!splitKeyValue(co, &key, &value))
+            throw UsageError(option + ": '" + echoText(co) +
+                             "' is not KEY=VALUE (a KEY of letters, digits and _)");
+        if (EQUAL(key.c_str(), "BLOCKXSIZE") || EQUAL(key.c_str(), "BLOCKYSIZE")) {
+            char* end = nullptr;
+            const long n = std::strtol(value.c_str(), &end, 10);
+            if (value.empty() || *end != '\0' || n < 16 || n > 4096 || n % 16 != 0)
+                throw UsageError(option + " " + echoText(co) +
+                                 ": GeoTIFF blocks are 16 to 4096 cells, a multiple of 16");
+        }
+        char** one = CSLAddString(nullptr, co.c_str());
+        CPLErrorReset();
+        const int ok = GDALValidateCreationOptions(drv, one);
+        CSLDestroy(one);
+        if (!ok) {
+            const std::string why = io_detail::lastGdalError();
+            throw UsageError(option + " " + echoText(co) +
+                             ": GDAL's GeoTIFF writer does not take it" +
+                             (why.empty() ? std::string() : " (" + echoText(why) + ")"));
+        }
+    }
+}
+
+void checkRasterExtension(const std::string& path, const std::string& option) {
+    const auto slash = path.find_last_of('/');
+    const auto dot = path.find_last_of('.');
+    std::string ext;
+    if (dot != std::string::npos && (slash == std::string::npos || dot > slash))
+        ext = path.substr(dot);
+    if (EQUAL(ext.c_str(), ".tif") || EQUAL(ext.c_str(), ".tiff"))
+        return;
+    throw UsageError(option + " " + echoText(path) +
+                     ": lookfar writes rasters as GeoTIFF; give the file name a .tif extension");
 }
 
 void checkOutputPath(const std::string& path, const std::vector<std::string>& inputs,

@@ -304,3 +304,13 @@ TEST(InputValidationCliTest, MissingStationsFileIsCalledTheStationsFile) {
         {"intervis", kCone, "--stations", in.file("none.csv"), "-o", out.file("m.csv"), "--quiet"},
         3, {"none.csv: cannot open the stations file"}, out);
 }
+
+// Item 6: a creation option GDAL's GeoTIFF writer would not take is refused before any work.
+TEST(InputValidationCliTest, CreationOptionsAreRefusedBeforeAnyWork) {
+    ScratchDir out;
+    expectRefused({"viewshed", kCone, "--observer", "431500,5588500", "-o", out.file("v.tif"),
+                   "--co", "COMPRESS=BOGUS"},
+                  2, {"--co COMPRESS=BOGUS"}, out);
+    expectRefused({"horizon", kCone, "-o", out.file("h.tif"), "--co", "BLOCKXSIZE=100"}, 2,
+                  {"--co BLOCKXSIZE=100", "multiple of 16"}, out);
+}

@@ -10,6 +10,7 @@
 
 #include "../support/CliRunner.hpp"
 #include "../support/RasterFiles.hpp"
+#include "lookfar/core/Errors.hpp"
 #include "lookfar/io/RasterWriter.hpp"
 
 using namespace lookfar;
@@ -139,4 +140,39 @@ TEST(RasterLayoutTest, CloudOptimisedLayoutKeepsValuesMetadataAndNoData) {
     EXPECT_EQ(back.nodata, 65535);
     ASSERT_EQ(back.values[0].size(), v.size());
     EXPECT_TRUE(std::equal(v.begin(), v.end(), back.values[0].begin()));
+}
+
+// Issue 12 item 6: creation options are checked before any work, against GDAL's own list for its
+// GeoTIFF writer (GDALValidateCreationOptions) and TIFF 6.0's rule that tiles are multiples of 16.
+TEST(RasterLayoutTest, CreationOptionsAreCheckedBeforeAnyWork) {
+    EXPECT_NO_THROW(
+        checkCreationOptions({"COMPRESS=LZW", "BLOCKXSIZE=512", "PREDICTOR=2"}, "--co"));
+    const std::vector<std::pair<std::string, std::string>> refused{
+        {"COMPRESS=BOGUS", "COMPRESS=BOGUS"}, {"BLOCKXSIZE=100", "multiple of 16"},
+        {"BLOCKYSIZE=x", "multiple of 16"},   {"NO_SUCH_KEY=1", "NO_SUCH_KEY=1"},
+        {"COMPRESS", "not KEY=VALUE"},
+    };
+    for (const auto& [co, needle] : refused) {
+        try {
+            checkCreationOptions({"TILED=YES", co}, "--co");
+            ADD_FAILURE() << co << " was accepted";
+        } catch (const UsageError& e) {
+            const std::string m = e.what();
+            EXPECT_EQ(m.rfind("--co", 0), 0u) << m;
+            EXPECT_NE(m.find(needle), std::string::npos) << m;
+        }
+    }
+}
+
+TEST(RasterLayoutTest, RasterOutputsAskForAGeoTiffByTheirExtension) {
+    EXPECT_NO_THROW(checkRasterExtension("out/v.tif", "-o"));
+    EXPECT_NO_THROW(checkRasterExtension("V.TIFF", "-o"));
+    for (const std::string bad : {"v.png", "v", "dir.tif/v", "v.tif.bak"}) {
+        try {
+            checkRasterExtension(bad, "--margin");
+            ADD_FAILURE() << bad << " was accepted";
+        } catch (const UsageError& e) {
+            EXPECT_NE(std::string(e.what()).find("--margin " + bad), std::string::npos) << e.what();
+        }
+    }
 }

@@ -57,6 +57,15 @@ std::vector<Rgba> countPalette(int max_count);
 /// compressed on every processor.
 std::vector<std::string> defaultCreationOptions(PixelType type);
 
+/// Checks GeoTIFF creation options before any work: each KEY=VALUE must be one that GDAL's GeoTIFF
+/// writer accepts with that value, and block sizes must be multiples of 16 (TIFF 6.0, section 15:
+/// tile width and length). Throws UsageError naming `option` and the offending KEY=VALUE.
+void checkCreationOptions(const std::vector<std::string>& options, const std::string& option);
+
+/// Checks that a raster output's file name asks for a GeoTIFF: `.tif` or `.tiff`, any case.
+/// Throws UsageError naming `option` and the path (lookfar writes its rasters as GeoTIFF only).
+void checkRasterExtension(const std::string& path, const std::string& option);
+
 /// Checks an output path before any work: its folder exists and is writable, it is not the
 /// same file as any of `inputs` (compared as files), and it does not exist unless `overwrite`.
 /// Throws OutputError naming the path.
