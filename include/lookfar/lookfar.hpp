@@ -56,3 +56,10 @@
 #include "lookfar/report/Summary.hpp"
 #include "lookfar/report/SvgPlot.hpp"
 #include "lookfar/report/TextTable.hpp"
+
+// run
+#include "lookfar/run/Command.hpp"
+#include "lookfar/run/Format.hpp"
+#include "lookfar/run/InfoRun.hpp"
+#include "lookfar/run/Options.hpp"
+#include "lookfar/run/RunContext.hpp"

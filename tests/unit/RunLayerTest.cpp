@@ -1,0 +1,129 @@
+// The run layer in-process: a command's option struct filled without any parser, its declared
+// options, its life (validate, open, execute, write, summary) and its progress and cancellation.
+#include <gtest/gtest.h>
+
+#include <gdal_priv.h>
+
+#include <algorithm>
+#include <array>
+#include <memory>
+#include <fstream>
+
+#include "../support/CliRunner.hpp"
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/run/InfoRun.hpp"
+
+using namespace lookfar;
+using namespace lookfar::testing;
+
+namespace {
+
+/// Records what a run reports, and asks it to stop after `cancel_after` advances (-1: never).
+class RecordingProgress final : public Progress {
+  public:
+    explicit RecordingProgress(int cancel_after = -1) : cancel_after_(cancel_after) {}
+    void begin(const std::string& label, std::int64_t total) override {
+        labels.push_back(label);
+        totals.push_back(total);
+    }
+    void advance(std::int64_t done) override { advances.push_back(done); }
+    bool cancelled() const override {
+        return cancel_after_ >= 0 && static_cast<int>(advances.size()) > cancel_after_;
+    }
+    std::vector<std::string> labels;
+    std::vector<std::int64_t> totals, advances;
+
+  private:
+    int cancel_after_;
+};
+
+/// GDAL's own exact statistics of band 1 (min, max, mean), the outside check of info's figures.
+std::array<double, 3> gdalStatistics(const std::string& path) {
+    GDALAllRegister();
+    // No .aux.xml beside the committed raster: GDAL would store the statistics there.
+    CPLSetThreadLocalConfigOption("GDAL_PAM_ENABLED", "NO");
+    std::unique_ptr<GDALDataset> ds(static_cast<GDALDataset*>(
+        GDALOpenEx(path.c_str(), GDAL_OF_RASTER | GDAL_OF_READONLY, nullptr, nullptr, nullptr)));
+    double mn = 0, mx = 0, mean = 0, sd = 0;
+    ds->GetRasterBand(1)->ComputeStatistics(FALSE, &mn, &mx, &mean, &sd, nullptr, nullptr);
+    ds.reset();
+    CPLSetThreadLocalConfigOption("GDAL_PAM_ENABLED", nullptr);
+    return {mn, mx, mean};
+}
+
+}  // namespace
+
+TEST(RunLayerTest, InfoRunsWithoutAParserAndAgreesWithGdal) {
+    run::InfoRun info;
+    info.options.common.dem = testRaster("demo_coast.tif");
+    RecordingProgress progress;
+    const run::RunReport report = info.run({&progress, "test"});
+    const auto& j = report.summary;
+    EXPECT_EQ(j["command"], "info");
+    EXPECT_EQ(j["dem"]["width"], 500);
+    EXPECT_EQ(j["dem"]["height"], 400);
+    // Outside check: GDAL's exact statistics of the same band (no-data skipped by both).
+    const auto stats = gdalStatistics(testRaster("demo_coast.tif"));
+    EXPECT_NEAR(j["elevation_m"]["min"].get<double>(), stats[0], 1e-3);
+    EXPECT_NEAR(j["elevation_m"]["max"].get<double>(), stats[1], 1e-3);
+    EXPECT_NEAR(j["elevation_m"]["mean"].get<double>(), stats[2], 1e-3);
+    EXPECT_NE(report.table.find("DEM " + testRaster("demo_coast.tif")), std::string::npos);
+    // Progress: one stage over the rows, advancing monotonically to the last row.
+    ASSERT_EQ(progress.labels.size(), 1u);
+    EXPECT_EQ(progress.totals.front(), 400);
+    ASSERT_FALSE(progress.advances.empty());
+    EXPECT_TRUE(std::is_sorted(progress.advances.begin(), progress.advances.end()));
+    EXPECT_EQ(progress.advances.back(), 400);
+}
+
+TEST(RunLayerTest, DeclaredOptionsFillTheStructAndHoldTheDefaults) {
+    run::InfoRun info;
+    run::OptionTable table = info.declare();
+    // The DEM is the one positional argument and is required; --approx fills its field.
+    EXPECT_EQ(table.front().flag(), "DEM");
+    EXPECT_TRUE(table.front().required);
+    EXPECT_EQ(table.front().type_name, "FILE");
+    run::OptionDecl& approx = run::findOption(table, "--approx");
+    *std::get<bool*>(approx.field) = true;
+    EXPECT_TRUE(info.options.approx);
+    // The default of --band lives in the struct and the declaration shows it.
+    run::OptionDecl& band = run::findOption(table, "--band");
+    EXPECT_TRUE(band.show_default);
+    EXPECT_EQ(*std::get<int*>(band.field), 1);
+    // Range checks run on the text, without CLI11, in the words the CLI prints.
+    EXPECT_EQ(band.check("1"), "");
+    EXPECT_EQ(band.check("0"), "'0' is not a whole number from 1 to 65535");
+    EXPECT_THROW(run::findOption(table, "--reach"), InternalError);  // info has no geometry
+}
+
+TEST(RunLayerTest, CancelledRunWritesNothingAndLeavesAnExistingFileAlone) {
+    ScratchDir dir;
+    const std::string summary = dir.file("summary.json");
+    { std::ofstream(summary) << "earlier"; }
+    run::InfoRun info;
+    info.options.common.dem = testRaster("demo_coast.tif");
+    info.options.common.summary = summary;
+    info.options.common.overwrite = true;
+    RecordingProgress stop_at_once(0);
+    EXPECT_THROW(info.run({&stop_at_once, "test"}), Interrupted);
+    EXPECT_EQ(readFile(summary), "earlier");
+    EXPECT_EQ(dir.entries(), std::vector<std::string>{"summary.json"});  // no temporary left
+    // Without --overwrite the existing file is refused before any work (exit 4).
+    info.options.common.overwrite = false;
+    RecordingProgress progress;
+    EXPECT_THROW(info.run({&progress, "test"}), OutputError);
+    EXPECT_TRUE(progress.labels.empty());
+    EXPECT_EQ(readFile(summary), "earlier");
+}
+
+TEST(RunLayerTest, BadOptionValuesAreUsageErrorsNamingTheFlag) {
+    run::InfoRun info;
+    info.options.common.dem = testRaster("demo_coast.tif");
+    info.options.common.z_unit = "furlong";
+    try {
+        info.run({});
+        FAIL() << "a bad --z-unit was accepted";
+    } catch (const UsageError& e) {
+        EXPECT_EQ(std::string(e.what()), "--z-unit: 'furlong' is not m, ft or us-ft");
+    }
+}
