@@ -61,5 +61,6 @@
 #include "lookfar/run/Command.hpp"
 #include "lookfar/run/Format.hpp"
 #include "lookfar/run/InfoRun.hpp"
+#include "lookfar/run/LinkRun.hpp"
 #include "lookfar/run/Options.hpp"
 #include "lookfar/run/RunContext.hpp"

@@ -6,12 +6,14 @@
 
 #include <algorithm>
 #include <array>
+#include <cmath>
 #include <memory>
 #include <fstream>
 
 #include "../support/CliRunner.hpp"
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/run/InfoRun.hpp"
+#include "lookfar/run/LinkRun.hpp"
 
 using namespace lookfar;
 using namespace lookfar::testing;
@@ -126,4 +128,29 @@ TEST(RunLayerTest, BadOptionValuesAreUsageErrorsNamingTheFlag) {
     } catch (const UsageError& e) {
         EXPECT_EQ(std::string(e.what()), "--z-unit: 'furlong' is not m, ft or us-ft");
     }
+}
+
+TEST(RunLayerTest, LinkOverTheFlatSeaClearsAtTheGeometricHorizon) {
+    // docs/references.md row 9: on a sphere of radius R (k = 0) two masts of height h over a
+    // smooth sea see each other up to 2·√(2Rh + h²) apart, i.e. the path of length D is clear
+    // when h ≥ R (1 / cos(D / 2R) − 1). The flat sea's row 500 runs 50 km between cell centres.
+    auto linkWithMasts = [](const std::string& height) {
+        run::LinkRun link;
+        link.options.common.dem = testRaster("flat_sea.tif");
+        link.options.common.earth_model = "sphere";
+        link.options.common.refraction = 0.0;
+        link.options.from = "400025,5624975";
+        link.options.to = "450025,5624975";
+        link.options.from_height = link.options.to_height = height;
+        return link.run({}).summary;
+    };
+    const nlohmann::json low = linkWithMasts("45");
+    const double d = low["path_length_m"].get<double>();
+    const double r = 6371008.8;
+    const double h_clear = r * (1.0 / std::cos(d / (2.0 * r)) - 1.0);
+    ASSERT_GT(h_clear, 46.0);
+    ASSERT_LT(h_clear, 52.0);
+    EXPECT_EQ(low["line_of_sight"], "blocked");
+    EXPECT_EQ(linkWithMasts(std::to_string(h_clear - 0.05))["line_of_sight"], "blocked");
+    EXPECT_EQ(linkWithMasts(std::to_string(h_clear + 0.05))["line_of_sight"], "clear");
 }
