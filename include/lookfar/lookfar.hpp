@@ -61,6 +61,7 @@
 #include "lookfar/run/Command.hpp"
 #include "lookfar/run/Format.hpp"
 #include "lookfar/run/InfoRun.hpp"
+#include "lookfar/run/IntervisRun.hpp"
 #include "lookfar/run/LinkRun.hpp"
 #include "lookfar/run/Options.hpp"
 #include "lookfar/run/RunContext.hpp"

@@ -246,7 +246,7 @@ struct LinkValues {
     MapPoint from_in, to_in;  ///< as given, in --crs
 };
 
-LinkValues checkLinkOptions(const LinkOptions& s) {
+LinkValues checkLinkOptions(const LinkRunOptions& s) {
     LinkValues v;
     v.from_h = parseHeightOption(s.from_height, "--from-height");
     v.to_h = parseHeightOption(s.to_height, "--to-height");
@@ -418,7 +418,7 @@ CommandHelp LinkRun::help() const {
 }
 
 OptionTable LinkRun::declare() {
-    LinkOptions& s = options;
+    LinkRunOptions& s = options;
     OptionTable t = commonOptions(s.common, kGeometryOptions);
     removeOption(t, "--reach");
     t.push_back(
@@ -450,7 +450,7 @@ OptionTable LinkRun::declare() {
 }
 
 RunReport LinkRun::run(const RunEnv& env) {
-    const LinkOptions& s = options;
+    const LinkRunOptions& s = options;
     // Validate (exit 2), open: the DEM, both ends, every output (exit 3, 4).
     const LinkValues v = checkLinkOptions(s);
     RunContext ctx = prepareRun(env, "link", s.common, {{"--csv", s.csv}, {"--plot", s.plot}}, {},

@@ -13,6 +13,7 @@
 #include "../support/CliRunner.hpp"
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/run/InfoRun.hpp"
+#include "lookfar/run/IntervisRun.hpp"
 #include "lookfar/run/LinkRun.hpp"
 
 using namespace lookfar;
@@ -153,4 +154,36 @@ TEST(RunLayerTest, LinkOverTheFlatSeaClearsAtTheGeometricHorizon) {
     EXPECT_EQ(low["line_of_sight"], "blocked");
     EXPECT_EQ(linkWithMasts(std::to_string(h_clear - 0.05))["line_of_sight"], "blocked");
     EXPECT_EQ(linkWithMasts(std::to_string(h_clear + 0.05))["line_of_sight"], "clear");
+}
+
+TEST(RunLayerTest, IntervisOverTheFlatSeaWritesTheMatrixAndCountsThePairs) {
+    // docs/references.md row 9: on a sphere (k = 0) masts of height h, 50 km apart over the flat
+    // sea, see each other when 2·√(2Rh) ≥ 50 km, i.e. h ≥ 49.05 m (the parabolic drop the engines
+    // use differs from the exact sphere by millimetres here). C, 2 m high and 1 km from A, sees
+    // A but not B: 49 km is beyond √(2R·2 m) + √(2R·49.6 m) = 5.0 + 25.1 km.
+    ScratchDir dir;
+    auto intervis = [&](double h) {
+        const std::string csv = dir.file("stations.csv");
+        std::ofstream(csv) << "name,x,y,height\nA,400025,5624975," << h << "\nB,450025,5624975,"
+                           << h << "\nC,401025,5624975,2\n";
+        run::IntervisRun run;
+        run.options.common.dem = testRaster("flat_sea.tif");
+        run.options.common.earth_model = "sphere";
+        run.options.common.refraction = 0.0;
+        run.options.common.overwrite = true;
+        run.options.stations = csv;
+        run.options.matrix = dir.file("matrix.csv");
+        return run.run({}).summary;
+    };
+    const nlohmann::json low = intervis(48.5);
+    EXPECT_EQ(low["pairs"], 3);
+    EXPECT_EQ(low["pairs_visible"], 1);  // A–C
+    EXPECT_EQ(low["stations"][0]["sees"], 1);
+    EXPECT_EQ(low["stations_seen_by_none"], nlohmann::json::array({"B"}));
+    const nlohmann::json high = intervis(49.6);
+    EXPECT_EQ(high["pairs_visible"], 2);  // A–B and A–C
+    const std::string matrix = readFile(dir.file("matrix.csv"));
+    EXPECT_EQ(matrix.rfind("from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg\n", 0),
+              0u);
+    EXPECT_NE(matrix.find("\nA,B,yes,"), std::string::npos);
 }

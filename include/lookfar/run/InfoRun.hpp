@@ -5,14 +5,14 @@
 
 namespace lookfar::run {
 
-struct InfoOptions {
+struct InfoRunOptions {
     CommonOptions common;
     bool approx = false;  ///< statistics from an overview of at least a million cells
 };
 
 class InfoRun final : public RunCommand {
   public:
-    InfoOptions options;
+    InfoRunOptions options;
 
     CommandHelp help() const override;
     OptionTable declare() override;

@@ -6,7 +6,7 @@
 
 namespace lookfar::run {
 
-struct LinkOptions {
+struct LinkRunOptions {
     CommonOptions common;
     std::string from, to;  ///< X,Y in --crs
     std::string from_height = "1.7", to_height = "1.7";
@@ -16,7 +16,7 @@ struct LinkOptions {
 
 class LinkRun final : public RunCommand {
   public:
-    LinkOptions options;
+    LinkRunOptions options;
 
     CommandHelp help() const override;
     OptionTable declare() override;
