@@ -410,8 +410,8 @@ void runPoint(const HorizonState& st) {
     ctx.run.method = "reference";
     ctx.run.extra["AT"] = fmtg(given.x) + "," + fmtg(given.y);
     ctx.run.extra["STEP_DEG"] = fmtg(st.step);
-    const HorizonProfile p =
-        horizonProfile(ctx.dem.z, g, ctx.earth, spot_w.col, spot_w.row, st.step, opt);
+    const HorizonProfile p = horizonProfile(ctx.dem.z, g, ctx.earth, spot_w.col, spot_w.row,
+                                            st.step, opt, *ctx.progress);
 
     // Horizon points back in the coordinates of --at.
     std::unique_ptr<CoordinateTransform> back;

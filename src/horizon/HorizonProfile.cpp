@@ -13,7 +13,7 @@ namespace lookfar {
 
 HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geometry,
                               const EarthModel& earth, int col, int row, double step_deg,
-                              const HorizonOptions& options) {
+                              const HorizonOptions& options, Progress& progress) {
     if (!(step_deg >= kMinHorizonStepDeg && step_deg <= kMaxHorizonStepDeg)) {
         char buf[160];
         std::snprintf(buf, sizeof buf, "--step: %g° is outside 0.05° to 90°", step_deg);
@@ -37,14 +37,15 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
     p.directions.resize(n);
     ParallelForOptions loop;
     loop.chunk = 16;
-    loop.report = false;
+    progress.begin("horizon round the spot", n);
     parallelFor(
-        n, silentProgress(),
+        n, progress,
         [&](std::int64_t i) {
             p.directions[i].azimuth_deg = static_cast<double>(i) * step_deg;
             p.directions[i].sample = scan.referenceAt(col, row, static_cast<double>(i) * step_deg);
         },
         loop);
+    progress.end();
 
     p.lowest_angle_deg = p.lowest_azimuth_deg = p.lowest_distance_m = nan;
     p.highest_angle_deg = p.highest_azimuth_deg = p.highest_distance_m = nan;

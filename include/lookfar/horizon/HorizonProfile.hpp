@@ -13,6 +13,7 @@
 #include <vector>
 
 #include "lookfar/core/Grid.hpp"
+#include "lookfar/core/Progress.hpp"
 #include "lookfar/core/GridGeometry.hpp"
 #include "lookfar/earth/EarthModel.hpp"
 #include "lookfar/horizon/HorizonScan.hpp"
@@ -59,8 +60,10 @@ struct HorizonProfile {
 /// The horizon of cell (col, row) every `step_deg` degrees, with its summary. Uses the reference
 /// engine (exact). Throws UsageError for a step outside [0.05, 90] and InputError when the cell is
 /// outside the grid or on no data. `options` supplies the observer height, reach and latitude.
+/// Reports its directions to `progress` (one stage) and stops with Interrupted when it is
+/// cancelled.
 HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geometry,
                               const EarthModel& earth, int col, int row, double step_deg,
-                              const HorizonOptions& options);
+                              const HorizonOptions& options, Progress& progress = silentProgress());
 
 }  // namespace lookfar
