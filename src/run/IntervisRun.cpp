@@ -8,7 +8,9 @@
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/Units.hpp"
 #include "lookfar/io/Crs.hpp"
+#include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/io/VectorOutput.hpp"
 #include "lookfar/link/Intervisibility.hpp"
 #include "lookfar/report/TextTable.hpp"
 
@@ -178,6 +180,32 @@ std::string linesGeoJson(const RunContext& ctx, const std::vector<MapPoint>& poi
     return text + "]}\n";
 }
 
+/// The stations as points in the DEM's CRS with their figures (--points).
+void writeStationPoints(RunContext& ctx, const std::string& path, const PlacedSites& placed,
+                        const PairTally& t) {
+    using K = VectorField::Kind;
+    VectorLayerSpec spec{path,
+                         "stations",
+                         ctx.dem.crs.wkt,
+                         {{"name", K::Text},
+                          {"ground_m", K::Real},
+                          {"height_m", K::Real},
+                          {"eye_m", K::Real},
+                          {"sees", K::Integer},
+                          {"seen_by", K::Integer}},
+                         "lookfar intervis: stations and how many others each sees and is seen by"};
+    std::vector<VectorFeature> features;
+    for (std::size_t i = 0; i < placed.observers.size(); ++i) {
+        const Observer& st = placed.observers[i];
+        const double ground = groundAt(ctx, st.col, st.row);
+        features.push_back(
+            {{{placed.points_dem[i].x, placed.points_dem[i].y}},
+             {st.name, ground, st.height_m, ground + st.height_m, static_cast<long long>(t.sees[i]),
+              static_cast<long long>(t.seen_by[i])}});
+    }
+    ctx.outputs->adopt(writeVectorFeatures(spec, features), path);
+}
+
 nlohmann::json summaryJson(const RunContext& ctx, const IntervisRunOptions& s,
                            const PlacedSites& placed, const PairTally& t) {
     const std::vector<Observer>& stations = placed.observers;
@@ -274,12 +302,21 @@ OptionTable IntervisRun::declare() {
                            "sees each other",
                            "Output")
                     .fileType());
+    t.push_back(OptionDecl("--points", &s.points,
+                           "the stations as points with their figures (name, ground_m, height_m, "
+                           "eye_m, sees, seen_by): .gpkg (GeoPackage, the DEM's CRS) or .geojson "
+                           "(WGS 84 lon/lat)",
+                           "Output")
+                    .fileType());
     return t;
 }
 
 RunReport IntervisRun::run(const RunEnv& env) {
     const IntervisRunOptions& s = options;
-    RunContext ctx = prepareRun(env, "intervis", s.common, {{"-o", s.matrix}, {"--lines", s.lines}},
+    if (!s.points.empty())
+        vectorFormatFor(s.points, "--points");  // exit 2 before any work
+    RunContext ctx = prepareRun(env, "intervis", s.common,
+                                {{"-o", s.matrix}, {"--lines", s.lines}, {"--points", s.points}},
                                 {s.stations}, DemCells::Later);
     ctx.run.method = "reference";
     ctx.run.extra["STATIONS"] = s.stations;
@@ -307,6 +344,8 @@ RunReport IntervisRun::run(const RunEnv& env) {
         writeTextFile(ctx, s.lines,
                       linesGeoJson(ctx, placed.points_dem, stations, res, tally, pairGeometry));
     }
+    if (!s.points.empty())
+        writeStationPoints(ctx, s.points, placed, tally);
     // Summary.
     const nlohmann::json j = summaryJson(ctx, s, placed, tally);
     return finishRun(ctx, j, summaryTable(ctx, stations, j["stations"], tally));

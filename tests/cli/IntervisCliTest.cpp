@@ -14,6 +14,7 @@
 
 #include "../support/CliRunner.hpp"
 #include "../support/CsvFiles.hpp"
+#include "../support/VectorFiles.hpp"
 
 using namespace lookfar::testing;
 
@@ -264,4 +265,48 @@ TEST(IntervisCliTest, LinkAndIntervisAgreeOnTheUsgsSample) {
     EXPECT_LE(clear, compared - 3);
     RecordProperty("pairs_compared", compared);
     RecordProperty("pairs_clear", clear);
+}
+
+// Issue 15 item 2: the stations as points, in a GeoPackage in the DEM's CRS (coordinates as given)
+// and in RFC 7946 GeoJSON (WGS 84 lon/lat, as PROJ transforms them), with the summary's counts.
+TEST(IntervisCliTest, StationsAsPointsCarryTheirCounts) {
+    ScratchDir dir;
+    CliResult r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                              testRaster("demo_sites.csv"), "-o", dir.file("m.csv"), "--points",
+                              dir.file("s.gpkg"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto summary = nlohmann::json::parse(r.out);
+    std::map<std::string, std::pair<int, int>> counts;
+    for (const auto& st : summary["stations"])
+        counts[st["name"]] = {st["sees"].get<int>(), st["seen_by"].get<int>()};
+    const auto gpkg = readVectorFeatures(dir.file("s.gpkg"));
+    ASSERT_EQ(gpkg.size(), kDemo.size());
+    for (const auto& p : gpkg) {
+        const auto at = kDemo.at(p.fields.at("name"));
+        EXPECT_DOUBLE_EQ(p.x, at.first);
+        EXPECT_DOUBLE_EQ(p.y, at.second);
+        EXPECT_EQ(std::stoi(p.fields.at("sees")), counts.at(p.fields.at("name")).first);
+        EXPECT_EQ(std::stoi(p.fields.at("seen_by")), counts.at(p.fields.at("name")).second);
+    }
+    r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                    testRaster("demo_sites.csv"), "-o", dir.file("m2.csv"), "--points",
+                    dir.file("s.geojson"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    for (const auto& p : readVectorFeatures(dir.file("s.geojson"))) {
+        const auto at = kDemo.at(p.fields.at("name"));
+        const LonLat ll = toLonLat("EPSG:32630", at.first, at.second);
+        EXPECT_NEAR(p.x, ll.lon, 1e-7);
+        EXPECT_NEAR(p.y, ll.lat, 1e-7);
+    }
+}
+
+TEST(IntervisCliTest, PointsInAnUnknownFormatAreRefusedBeforeAnyWork) {
+    ScratchDir dir;
+    CliResult r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                              testRaster("demo_sites.csv"), "-o", dir.file("m.csv"), "--points",
+                              dir.file("s.shp")});
+    EXPECT_EQ(r.exit_code, 2) << r.err;
+    EXPECT_NE(firstLine(r.err).find("--points"), std::string::npos) << r.err;
+    EXPECT_NE(firstLine(r.err).find(".gpkg"), std::string::npos) << r.err;
+    EXPECT_TRUE(dir.entries().empty());
 }

@@ -13,6 +13,7 @@
 #include <map>
 
 #include "../support/CliRunner.hpp"
+#include "../support/VectorFiles.hpp"
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/VectorOutput.hpp"
@@ -42,55 +43,6 @@ Grid<std::int32_t> gridFrom(const std::vector<std::string>& rows) {
         for (int c = 0; c < g.width(); ++c)
             g(c, r) = rows[r][c] == '.' ? -1 : rows[r][c] - '0';
     return g;
-}
-
-struct ReadFeature {
-    std::map<std::string, std::string> fields;
-    double planar_area = 0;
-    double ring_signed_area = 0;  // of the exterior ring, as stored (shoelace)
-    int holes = 0;
-    std::vector<std::array<double, 2>> vertices;  // points and lines
-};
-
-double shoelace(OGRGeometryH ring) {
-    double s = 0;
-    const int n = OGR_G_GetPointCount(ring);
-    for (int i = 0; i + 1 < n; ++i)
-        s += OGR_G_GetX(ring, i) * OGR_G_GetY(ring, i + 1) -
-             OGR_G_GetX(ring, i + 1) * OGR_G_GetY(ring, i);
-    return s / 2;
-}
-
-std::vector<ReadFeature> readFeatures(const std::string& path) {
-    GDALAllRegister();
-    std::vector<ReadFeature> out;
-    GDALDatasetH ds = GDALOpenEx(path.c_str(), GDAL_OF_VECTOR, nullptr, nullptr, nullptr);
-    EXPECT_NE(ds, nullptr) << path;
-    if (!ds)
-        return out;
-    OGRLayerH layer = GDALDatasetGetLayer(ds, 0);
-    OGRFeatureDefnH defn = OGR_L_GetLayerDefn(layer);
-    OGR_L_ResetReading(layer);
-    while (OGRFeatureH f = OGR_L_GetNextFeature(layer)) {
-        ReadFeature rf;
-        for (int i = 0; i < OGR_FD_GetFieldCount(defn); ++i)
-            rf.fields[OGR_Fld_GetNameRef(OGR_FD_GetFieldDefn(defn, i))] =
-                OGR_F_GetFieldAsString(f, i);
-        OGRGeometryH g = OGR_F_GetGeometryRef(f);
-        const auto type = wkbFlatten(OGR_G_GetGeometryType(g));
-        if (type == wkbPolygon) {
-            rf.planar_area = OGR_G_Area(g);
-            rf.ring_signed_area = shoelace(OGR_G_GetGeometryRef(g, 0));
-            rf.holes = OGR_G_GetGeometryCount(g) - 1;
-        } else {
-            for (int i = 0; i < OGR_G_GetPointCount(g); ++i)
-                rf.vertices.push_back({OGR_G_GetX(g, i), OGR_G_GetY(g, i)});
-        }
-        out.push_back(rf);
-        OGR_F_Destroy(f);
-    }
-    GDALClose(ds);
-    return out;
 }
 
 // Longitude/latitude of a UTM 30N point, by PROJ through OGR.
@@ -155,7 +107,7 @@ TEST(VectorOutputTest, AreasAreTracedWithTheirCountsAndTrueAreas) {
     set.adopt(out.temp, dir.file("a.gpkg"));
     set.commit();
 
-    const auto features = readFeatures(dir.file("a.gpkg"));
+    const auto features = readVectorFeatures(dir.file("a.gpkg"));
     ASSERT_EQ(features.size(), 4u);
     double total = 0;
     for (const auto& f : features) {
@@ -236,7 +188,7 @@ TEST(VectorOutputTest, PointsAndLinesKeepTheirValuesAndCoordinates) {
     set.adopt(writeVectorFeatures(spec, lines), spec.path);
     set.commit();
 
-    const auto p = readFeatures(dir.file("stations.gpkg"));
+    const auto p = readVectorFeatures(dir.file("stations.gpkg"));
     ASSERT_EQ(p.size(), 2u);
     EXPECT_EQ(p[0].fields.at("name"), "Merrowdun Hill");
     EXPECT_EQ(p[0].fields.at("sees"), "3");
@@ -244,7 +196,7 @@ TEST(VectorOutputTest, PointsAndLinesKeepTheirValuesAndCoordinates) {
     ASSERT_EQ(p[1].vertices.size(), 1u);
     EXPECT_DOUBLE_EQ(p[1].vertices[0][0], 426937.5);
     EXPECT_DOUBLE_EQ(p[1].vertices[0][1], 5594387.5);
-    const auto l = readFeatures(dir.file("links.geojson"));
+    const auto l = readVectorFeatures(dir.file("links.geojson"));
     ASSERT_EQ(l.size(), 1u);
     ASSERT_EQ(l[0].vertices.size(), 2u);
     const auto start = lonLatOfUtm30n(425087.5, 5597212.5);

@@ -11,6 +11,7 @@ struct IntervisRunOptions {
     std::string stations;  ///< CSV of stations
     std::string matrix;    ///< -o: the matrix CSV
     std::string lines;     ///< GeoJSON of the pairs that see each other, empty = not written
+    std::string points;    ///< the stations as points (.gpkg or .geojson), empty = not written
     bool all_pairs = false;
 };
 
