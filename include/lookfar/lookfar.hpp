@@ -65,3 +65,5 @@
 #include "lookfar/run/LinkRun.hpp"
 #include "lookfar/run/Options.hpp"
 #include "lookfar/run/RunContext.hpp"
+#include "lookfar/run/SelectRun.hpp"
+#include "lookfar/run/ViewshedRun.hpp"

@@ -166,6 +166,10 @@ void TerminalProgress::end() {
     open_ = false;
 }
 
+void TerminalProgress::warn(const std::string& sentence) {
+    std::cerr << "lookfar: " << sentence << "\n";
+}
+
 bool TerminalProgress::cancelled() const {
     return interruptFlag().load(std::memory_order_relaxed);
 }

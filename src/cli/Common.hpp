@@ -48,6 +48,8 @@ class TerminalProgress final : public Progress {
     void advance(std::int64_t done) override;
     void end() override;
     bool cancelled() const override;
+    /// "lookfar: SENTENCE" on stderr, also with --quiet.
+    void warn(const std::string& sentence) override;
 
   private:
     bool quiet_;

@@ -15,6 +15,8 @@
 #include "lookfar/run/InfoRun.hpp"
 #include "lookfar/run/IntervisRun.hpp"
 #include "lookfar/run/LinkRun.hpp"
+#include "lookfar/run/SelectRun.hpp"
+#include "lookfar/run/ViewshedRun.hpp"
 
 using namespace lookfar;
 using namespace lookfar::testing;
@@ -186,4 +188,39 @@ TEST(RunLayerTest, IntervisOverTheFlatSeaWritesTheMatrixAndCountsThePairs) {
     EXPECT_EQ(matrix.rfind("from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg\n", 0),
               0u);
     EXPECT_NE(matrix.find("\nA,B,yes,"), std::string::npos);
+}
+
+TEST(RunLayerTest, ViewshedOverTheFlatSeaReachesTheGeometricHorizon) {
+    // docs/references.md row 9: from an eye h above a smooth sea on a sphere (k = 0) the sea
+    // surface is seen out to d = √(2Rh + h²): 11.29 km for h = 10 m. The flat sea has 50 m cells.
+    ScratchDir dir;
+    run::ViewshedRun viewshed;
+    viewshed.options.common.dem = testRaster("flat_sea.tif");
+    viewshed.options.common.earth_model = "sphere";
+    viewshed.options.common.refraction = 0.0;
+    viewshed.options.common.observer_height = "10";
+    viewshed.options.observer = "425025,5624975";
+    viewshed.options.output = dir.file("visible.tif");
+    const nlohmann::json j = viewshed.run({}).summary;
+    const double r = 6371008.8, h = 10.0;
+    const double horizon = std::sqrt(2.0 * r * h + h * h);
+    EXPECT_NEAR(j["observers"][0]["farthest_visible_m"].get<double>(), horizon, 75.0);
+    EXPECT_EQ(j["extent"]["mode"], "dem");  // the struct's default for a raster command
+    EXPECT_TRUE(fileExists(dir.file("visible.tif")));
+}
+
+TEST(RunLayerTest, SelectNeedsACountOrACoverageGoal) {
+    ScratchDir dir;
+    run::SelectRun select;
+    select.options.common.dem = testRaster("demo_coast.tif");
+    select.options.candidates = testRaster("demo_sites.csv");
+    select.options.output = dir.file("count.tif");
+    EXPECT_THROW(select.run({}), UsageError);  // neither --count nor --coverage
+    select.options.count = 1;
+    select.options.count_given = true;
+    select.options.common.reach = "2km";
+    const nlohmann::json j = select.run({}).summary;
+    EXPECT_EQ(j["selected"].size(), 1u);
+    EXPECT_EQ(j["stop_reason"], "count");
+    EXPECT_TRUE(fileExists(dir.file("count.tif")));
 }

@@ -17,6 +17,9 @@ class Progress {
     virtual void end() {}
     /// True once the user asked to stop; engines then throw Interrupted.
     virtual bool cancelled() const { return false; }
+    /// A sentence for the user that is not an error (a goal not reached …); a sink that shows
+    /// progress shows it even when it is quiet.
+    virtual void warn(const std::string& sentence) { (void)sentence; }
 };
 
 /// Passes an outer run's cancellation to an inner engine, and shows nothing of it.

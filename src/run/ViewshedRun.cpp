@@ -1,0 +1,397 @@
+#include "lookfar/run/ViewshedRun.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <limits>
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/report/TextTable.hpp"
+#include "lookfar/stats/ViewshedStats.hpp"
+#include "lookfar/viewshed/MultiViewshed.hpp"
+#include "lookfar/viewshed/Viewshed.hpp"
+
+namespace lookfar::run {
+
+namespace {
+
+std::string fixed3(double v) {
+    return printfNumber("%.3f", v);
+}
+
+std::string percent(double fraction) {
+    return formatNumber(100.0 * fraction, 2) + " %";
+}
+
+/// A placed observer with what the summary reports about it.
+struct PlacedSite {
+    Observer observer;
+    double x = 0, y = 0;  ///< as given, in --crs
+    double ground_m = 0;
+};
+
+nlohmann::json observerJson(const RunContext& ctx, const PlacedSite& p, const ViewshedStats& s) {
+    const GridGeometry& g = ctx.grid;
+    nlohmann::json bands = nlohmann::json::object();
+    for (int b = 0; b < kDistanceBandCount; ++b)
+        bands[distanceBandLabel(b)] = s.visible_area_by_band_m2[b];
+    return {{"name", p.observer.name},
+            {"x", p.x},
+            {"y", p.y},
+            {"ground_m", p.ground_m},
+            {"eye_m", p.ground_m + p.observer.height_m},
+            {"height_m", p.observer.height_m},
+            {"col", p.observer.col},
+            {"row", p.observer.row},
+            {"cell_x", g.mapX(p.observer.col)},
+            {"cell_y", g.mapY(p.observer.row)},
+            {"visible_cells", s.visible_cells},
+            {"evaluated_cells", s.evaluated_cells},
+            {"visible_area_m2", s.visible_area_m2},
+            {"evaluated_area_m2", s.evaluated_area_m2},
+            {"visible_fraction", s.visible_fraction},
+            {"farthest_visible_m", s.farthest_visible_m},
+            {"visible_area_by_distance_m2", bands}};
+}
+
+std::string bandTable(const ViewshedStats& s) {
+    TextTable t("Visible area by distance from the observer");
+    t.setHeader({"distance", "visible area", "share of the visible area"});
+    for (int b = 0; b < kDistanceBandCount; ++b) {
+        const double a = s.visible_area_by_band_m2[b];
+        t.addRow({distanceBandLabel(b), formatArea(a),
+                  s.visible_area_m2 > 0 ? percent(a / s.visible_area_m2) : "-"});
+    }
+    return t.render();
+}
+
+std::string reachText(double reach_m) {
+    return std::isfinite(reach_m) ? formatDistance(reach_m) : "unlimited";
+}
+
+/// The observers placed on the DEM (exit 3 when outside); then the cells within their reach
+/// are read (exit 3 when an observer stands on no-data).
+std::vector<PlacedSite> placeViewshedObservers(RunContext& ctx, const ViewshedRunOptions& st,
+                                               bool single, const MapPoint& given) {
+    std::vector<PlacedSite> placed;
+    if (single) {
+        PlacedSite p;
+        p.x = given.x;
+        p.y = given.y;
+        p.observer =
+            placeObserver(ctx, "--observer", given.x, given.y, ctx.observer_height_m, st.name);
+        placed.push_back(p);
+        readDemWindow(ctx, workWindow(ctx, {p.observer}));
+        requireData(ctx, "--observer", given, p.observer);
+    } else {
+        const PlacedSites rows = placeSitesCsv(ctx, st.sites, "site");
+        for (std::size_t i = 0; i < rows.rows.size(); ++i) {
+            PlacedSite p;
+            p.x = rows.rows[i].x;
+            p.y = rows.rows[i].y;
+            p.observer = rows.observers[i];
+            placed.push_back(p);
+        }
+        readDemWindow(ctx, workWindow(ctx, rows.observers));
+        requireData(ctx, rows);
+    }
+    for (PlacedSite& p : placed)
+        p.ground_m = groundAt(ctx, p.observer.col, p.observer.row);
+    return placed;
+}
+
+/// What the rasters' metadata records of the observers.
+void describeObservers(RunContext& ctx, const ViewshedRunOptions& st, bool single,
+                       const std::vector<PlacedSite>& placed) {
+    RunDescription& run = ctx.run;
+    run.extra["COORDINATE_CRS"] = st.common.crs.empty() ? "the DEM's" : st.common.crs;
+    if (single) {
+        const PlacedSite& p = placed.front();
+        run.extra["OBSERVER"] = p.observer.name;
+        run.extra["OBSERVER_XY"] = fmtg(p.x) + "," + fmtg(p.y);
+        run.extra["OBSERVER_CELL"] =
+            std::to_string(p.observer.col) + "," + std::to_string(p.observer.row);
+        run.extra["OBSERVER_GROUND_M"] = fixed3(p.ground_m);
+        run.extra["OBSERVER_EYE_M"] = fixed3(p.ground_m + p.observer.height_m);
+    } else {
+        run.extra["SITES"] = st.sites;
+        run.extra["SITE_COUNT"] = std::to_string(placed.size());
+        run.extra["SITE_HEIGHTS"] = "per-site height column, else --observer-height";
+    }
+}
+
+/// The run's rasters, each written to its temporary file first; handed to the run's outputs at
+/// the end, so that they are renamed into place together and a failure leaves none behind.
+class ViewshedRasters {
+  public:
+    explicit ViewshedRasters(RunContext& ctx) : ctx_(ctx) {}
+    /// Writes `data` (a grid over the window read) into a new one-band raster.
+    void write(const std::string& path, PixelType type, double nodata,
+               const std::string& description, const std::string& unit, const void* data) {
+        RasterSpec spec = outputSpec(ctx_, path, type, 1, nodata);
+        spec.band_descriptions = {description};
+        spec.unit_type = unit;
+        writers_.push_back(std::make_unique<RasterWriter>(spec));
+        writeWindowBand(ctx_, *writers_.back(), 1, data);
+    }
+    void handOver() {
+        for (auto& w : writers_)
+            ctx_.outputs->addRaster(*w);
+    }
+
+  private:
+    RunContext& ctx_;
+    std::vector<std::unique_ptr<RasterWriter>> writers_;
+};
+
+const char* const kMarginText =
+    "margin: DEM + target height minus the height of the limiting sightline, metres "
+    "(>= 0 visible; -margin is the extra height a target needs)";
+
+std::string singleTable(const RunContext& ctx, const PlacedSite& p, const ViewshedStats& s) {
+    const RunDescription& run = ctx.run;
+    TextTable t("Viewshed from " + p.observer.name + " on " + ctx.dem.path);
+    t.add("observer", fmtg(p.x) + ", " + fmtg(p.y) + " (cell " + std::to_string(p.observer.col) +
+                          ", " + std::to_string(p.observer.row) + ")");
+    t.add("ground", formatNumber(p.ground_m, 2) + " m");
+    t.add("eye", formatNumber(p.ground_m + p.observer.height_m, 2) + " m (" +
+                     formatNumber(p.observer.height_m, 2) + " m above the ground)");
+    t.add("target height", formatNumber(ctx.target_height_m, 2) + " m above the ground");
+    t.add("reach", reachText(ctx.reach_m));
+    t.add("earth", run.earth_model + ", refraction k = " + fmtg(run.refraction) +
+                       (ctx.earth.shape() == EarthShape::Flat
+                            ? ""
+                            : ", effective radius " +
+                                  formatDistance(run.earth_radius_m / (1.0 - run.refraction))));
+    t.add("method", ctx.options.method);
+    t.add("visible cells", formatNumber(static_cast<double>(s.visible_cells), 0) + " of " +
+                               formatNumber(static_cast<double>(s.evaluated_cells), 0) +
+                               " evaluated");
+    t.add("visible area",
+          formatArea(s.visible_area_m2) + " of " + formatArea(s.evaluated_area_m2) + " evaluated");
+    t.add("visible fraction", percent(s.visible_fraction) + " of the evaluated area");
+    t.add("farthest visible", formatDistance(s.farthest_visible_m));
+    return t.render() + "\n" + bandTable(s);
+}
+
+/// One observer: the engine, its rasters, its summary entry; returns the table.
+std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const PlacedSite& p,
+                      const ViewshedOptions& opt, ViewshedRasters& rasters, nlohmann::json& j) {
+    const GridGeometry& g = ctx.dem.geometry;  // of the window read
+    const Observer o = inWindow(ctx, p.observer);
+    ViewshedGrids grids = computeViewshed(ctx.dem.z, g, ctx.earth, o, opt, *ctx.progress);
+    const ViewshedStats s = summarizeViewshed(grids.visible, grids.window, g, o);
+    ctx.dem.z = Grid<float>();  // the elevations are no longer needed: free them first
+    const float nan = std::numeric_limits<float>::quiet_NaN();
+    rasters.write(st.output, PixelType::Byte, kNoVisibility,
+                  "visibility from " + p.observer.name +
+                      ": 1 visible, 0 hidden, 255 no data (outside reach or DEM no-data)",
+                  "", grids.visible.data());
+    grids.visible = Grid<std::uint8_t>();
+    if (opt.want_margin) {
+        rasters.write(st.margin, PixelType::Float32, nan, kMarginText, "m", grids.margin.data());
+        grids.margin = Grid<float>();
+    }
+    if (opt.want_angle) {
+        rasters.write(st.angle, PixelType::Float32, nan,
+                      "elevation angle from the eye to the target point, degrees above the eye's "
+                      "local horizontal (negative below)",
+                      "deg", grids.angle.data());
+    }
+    j["observers"] = nlohmann::json::array({observerJson(ctx, p, s)});
+    return singleTable(ctx, p, s);
+}
+
+std::string coverageTables(const RunContext& ctx, const CoverageStats& cov, double any_fraction) {
+    TextTable c("Coverage");
+    c.add("seen by any site", formatArea(cov.area_seen_by_any_m2) + " (" +
+                                  formatNumber(static_cast<double>(cov.cells_seen_by_any), 0) +
+                                  " cells), " + percent(any_fraction) + " of the evaluated area");
+    c.add("evaluated", formatArea(cov.evaluated_area_m2) + " (" +
+                           formatNumber(static_cast<double>(cov.evaluated_cells), 0) +
+                           " cells within reach of a site)");
+    c.add("target height", formatNumber(ctx.target_height_m, 2) + " m above the ground");
+    c.add("reach", reachText(ctx.reach_m));
+    TextTable k("Cells by number of sites that see them");
+    k.setHeader({"sites", "cells", "share of the evaluated cells"});
+    for (std::size_t n = 0; n < cov.cells_by_count.size(); ++n) {
+        const double cells = static_cast<double>(cov.cells_by_count[n]);
+        k.addRow({std::to_string(n), formatNumber(cells, 0),
+                  cov.evaluated_cells ? percent(cells / cov.evaluated_cells) : "-"});
+    }
+    return c.render() + "\n" + k.render();
+}
+
+/// The sites' summary entries and their table.
+std::string sitesTable(const RunContext& ctx, const std::vector<PlacedSite>& placed,
+                       const MultiViewshedResult& res, nlohmann::json& j) {
+    nlohmann::json obs = nlohmann::json::array();
+    TextTable t("Viewsheds of " + std::to_string(placed.size()) + " sites on " + ctx.dem.path);
+    t.setHeader(
+        {"site", "height", "ground", "visible area", "visible fraction", "farthest visible"});
+    for (std::size_t i = 0; i < placed.size(); ++i) {
+        const PlacedSite& p = placed[i];
+        const ViewshedStats& s = res.sites[i];
+        obs.push_back(observerJson(ctx, p, s));
+        t.addRow({p.observer.name, formatNumber(p.observer.height_m, 1) + " m",
+                  formatNumber(p.ground_m, 1) + " m", formatArea(s.visible_area_m2),
+                  percent(s.visible_fraction), formatDistance(s.farthest_visible_m)});
+    }
+    j["observers"] = obs;
+    return t.render();
+}
+
+/// Several sites: the engine, the count and margin rasters, the summary; returns the table.
+std::string runSites(RunContext& ctx, const ViewshedRunOptions& st,
+                     const std::vector<PlacedSite>& placed, const ViewshedOptions& opt,
+                     ViewshedRasters& rasters, nlohmann::json& j) {
+    const GridGeometry& g = ctx.dem.geometry;  // of the window read
+    std::vector<Observer> observers;
+    for (const PlacedSite& p : placed)
+        observers.push_back(inWindow(ctx, p.observer));
+    MultiViewshedResult res = multiViewshed(ctx.dem.z, g, ctx.earth, observers, opt, *ctx.progress);
+    const CoverageStats cov = summarizeCoverage(res.count, g, static_cast<int>(placed.size()));
+    ctx.dem.z = Grid<float>();
+    rasters.write(st.output, PixelType::UInt16, kNoCount,
+                  "number of the " + std::to_string(placed.size()) +
+                      " sites that see the cell; 65535 no data (outside every site's reach or DEM "
+                      "no-data)",
+                  "", res.count.data());
+    res.count = Grid<std::uint16_t>();
+    if (opt.want_margin) {
+        rasters.write(st.margin, PixelType::Float32, std::numeric_limits<float>::quiet_NaN(),
+                      std::string("largest over the sites of the ") + kMarginText, "m",
+                      res.best_margin.data());
+    }
+    const std::string table = sitesTable(ctx, placed, res, j);
+    const double any_fraction =
+        cov.evaluated_area_m2 > 0 ? cov.area_seen_by_any_m2 / cov.evaluated_area_m2 : 0.0;
+    j["coverage"] = {{"cells_seen_by_any", cov.cells_seen_by_any},
+                     {"area_seen_by_any_m2", cov.area_seen_by_any_m2},
+                     {"cells_by_count", cov.cells_by_count},
+                     {"evaluated_cells", cov.evaluated_cells},
+                     {"evaluated_area_m2", cov.evaluated_area_m2},
+                     {"fraction_seen_by_any", any_fraction}};
+    return table + "\n" + coverageTables(ctx, cov, any_fraction);
+}
+
+/// The observer options checked (exit 2 before any file is touched); true for one observer.
+bool checkObserverOptions(const ViewshedRunOptions& st, MapPoint* given) {
+    const bool single = !st.observer.empty();
+    if (single == !st.sites.empty()) {
+        throw UsageError(
+            "give either --observer X,Y (one observer) or --sites FILE (several sites)");
+    }
+    if (!single && !st.angle.empty()) {
+        throw UsageError(
+            "--angle needs a single observer (--observer); an elevation angle has no meaning "
+            "over several sites");
+    }
+    if (single)
+        *given = parsePoint(st.observer, "--observer");
+    return single;
+}
+
+nlohmann::json outputsJson(const ViewshedRunOptions& st, bool single) {
+    nlohmann::json outputs = nlohmann::json::object();
+    outputs[single ? "visibility" : "count"] = st.output;
+    if (!st.margin.empty())
+        outputs["margin"] = st.margin;
+    if (!st.angle.empty())
+        outputs["angle"] = st.angle;
+    return outputs;
+}
+
+}  // namespace
+
+CommandHelp ViewshedRun::help() const {
+    return {"viewshed",
+            "which cells a target can be seen from: one observer (--observer) or how many of "
+            "several sites (--sites) see each cell, with margins and a summary",
+            "\nEngines: 'fast' (the default) follows wedges of sightlines outward from the "
+            "observer,\n"
+            "  with bounds of the terrain they meet, and re-checks exactly the cells the bounds "
+            "leave\n"
+            "  open; 'reference' judges every cell on its own. Both give the same result, cell "
+            "for\n"
+            "  cell; the reference is much slower.\n"
+            "Summary: visible cells and their true ground area, the visible fraction of the "
+            "evaluated\n"
+            "  area (cells within reach with data), the farthest visible cell and the visible "
+            "area by\n"
+            "  distance band (0-1, 1-5, 5-10, 10-25, 25-50, >50 km).\n"};
+}
+
+OptionTable ViewshedRun::declare() {
+    ViewshedRunOptions& st = options;
+    OptionTable t = commonOptions(st.common, kAllCommon);
+    findOption(t, "--observer-height").help =
+        "eye above the ground, metres (a site's CSV height overrides it)";
+    t.push_back(OptionDecl("--observer", &st.observer,
+                           "observer position X,Y in --crs (the observer stands on the centre of "
+                           "the cell that holds it)",
+                           "Observers")
+                    .excluding("--sites"));
+    t.push_back(OptionDecl("--name", &st.name, "name of the --observer in the summary", "Observers")
+                    .showDefault());
+    t.push_back(OptionDecl("--sites", &st.sites,
+                           "CSV of sites (RFC 4180, UTF-8): name,x,y and optional height (metres "
+                           "above ground; overrides --observer-height); names unique",
+                           "Observers")
+                    .fileType());
+    t.push_back(OptionDecl("-o,--output", &st.output,
+                           "visibility raster (Byte: 1 visible, 0 hidden, 255 no data); with "
+                           "--sites a count raster (UInt16: sites that see the cell, 65535 no "
+                           "data)",
+                           "Output")
+                    .fileType()
+                    .mandatory());
+    t.push_back(OptionDecl("--margin", &st.margin,
+                           "Float32 raster of margins, metres: DEM + target height minus the "
+                           "limiting sightline (>= 0 visible); with --sites the largest over the "
+                           "sites",
+                           "Output")
+                    .fileType());
+    t.push_back(OptionDecl("--angle", &st.angle,
+                           "Float32 raster of the elevation angle from the eye to each target "
+                           "point, degrees (single observer)",
+                           "Output")
+                    .fileType());
+    return t;
+}
+
+RunReport ViewshedRun::run(const RunEnv& env) {
+    const ViewshedRunOptions& st = options;
+    MapPoint given{};
+    const bool single = checkObserverOptions(st, &given);
+    std::vector<NamedPath> outputs = {
+        {"-o", st.output}, {"--margin", st.margin}, {"--angle", st.angle}};
+    std::vector<std::string> extra_inputs;
+    if (!single)
+        extra_inputs.push_back(st.sites);
+    RunContext ctx = prepareRun(env, "viewshed", st.common, outputs, extra_inputs, DemCells::Later);
+    const std::vector<PlacedSite> placed = placeViewshedObservers(ctx, st, single, given);
+
+    ViewshedOptions opt;
+    opt.target_height_m = ctx.target_height_m;
+    opt.reach_m = ctx.reach_m;
+    opt.method = st.common.method == "reference" ? ViewshedMethod::Reference : ViewshedMethod::Fast;
+    opt.want_margin = !st.margin.empty();
+    opt.want_angle = !st.angle.empty();
+    describeObservers(ctx, st, single, placed);
+
+    nlohmann::json j = summaryBase(ctx.run);
+    j["outputs"] = outputsJson(st, single);
+    ViewshedRasters rasters(ctx);
+    std::string table = single ? runSingle(ctx, st, placed.front(), opt, rasters, j)
+                               : runSites(ctx, st, placed, opt, rasters, j);
+    rasters.handOver();
+    if (!table.empty() && table.back() != '\n')
+        table += "\n";
+    return finishRun(ctx, j, table);
+}
+
+}  // namespace lookfar::run
