@@ -116,6 +116,14 @@ double EarthModel::sphereElevationAngleDeg(double h1_m, double h2_m, double d_m,
     return std::atan2(y, x) * kRadToDeg;
 }
 
+double EarthModel::sphereChordM(double h1_m, double h2_m, double d_m, double r_m) {
+    if (!std::isfinite(r_m))
+        return std::hypot(d_m, h2_m - h1_m);
+    // 1 − cos θ = 2 sin²(θ/2): no loss of precision for short lines.
+    const double a = r_m + h1_m, b = r_m + h2_m, half = std::sin(d_m / (2.0 * r_m));
+    return std::sqrt((a - b) * (a - b) + 4.0 * a * b * half * half);
+}
+
 double EarthModel::sphereDipDeg(double h_m, double r_eff_m) {
     if (!std::isfinite(r_eff_m) || h_m <= 0)
         return 0.0;

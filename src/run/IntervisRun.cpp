@@ -26,23 +26,37 @@ double round7(double v) {
     return std::round(v * 1e7) / 1e7;
 }
 
-/// Distance and azimuths of a pair, from the points as given (converted to the DEM's CRS).
+/// Distance, azimuths and survey figures of a pair, from the points as given (converted to the
+/// DEM's CRS) and the stations' eyes.
 struct PairGeometry {
     double distance_m = 0;        ///< PROJ geodesic on the DEM's ellipsoid
     double azimuth_deg = 0;       ///< grid azimuth at the first station towards the second
     double back_azimuth_deg = 0;  ///< grid azimuth at the second station towards the first
+    double azimuth_true_deg = 0;  ///< geodesic azimuth at the first station (from true north)
+    double zenith_deg = 0;    ///< zenith angle first eye → second eye, curvature and refraction
+    double slope_m = 0;       ///< straight line between the eyes (true radius)
+    double grid_m = 0;        ///< distance in the map's plane (the geodesic on lat/lon DEMs)
+    double scale_factor = 1;  ///< grid ÷ geodesic distance (1 on lat/lon DEMs)
 };
 
-/// Distances and azimuths of pairs (PROJ geodesic; grid azimuths from the map coordinates, which
-/// on a lat/lon grid are the true ones), solved from the lower index to the higher so that both
-/// directions of a pair print the same figures.
+/// Figures of pairs (PROJ geodesic; grid azimuths from the map coordinates, which on a lat/lon
+/// grid are the true ones), solved from the lower index to the higher so that both directions of
+/// a pair print the same distances.
 class PairGeometer {
   public:
-    PairGeometer(const RunContext& ctx, const std::vector<MapPoint>& points)
-        : points_(points), geo_(ctx.dem.crs.ellipsoid), geographic_(ctx.grid.geographic()) {
+    PairGeometer(const RunContext& ctx, const std::vector<MapPoint>& points,
+                 const std::vector<Observer>& stations)
+        : points_(points),
+          stations_(stations),
+          earth_(ctx.earth),
+          geo_(ctx.dem.crs.ellipsoid),
+          geographic_(ctx.grid.geographic()),
+          unit_m_(ctx.grid.linearUnitMetres()) {
         const LonLatOf ll(ctx.dem.crs.wkt);
-        for (const MapPoint& p : points)
-            lonlat_.push_back(ll.apply(p));
+        for (std::size_t i = 0; i < points.size(); ++i) {
+            lonlat_.push_back(ll.apply(points[i]));
+            eye_.push_back(groundAt(ctx, stations[i].col, stations[i].row) + stations[i].height_m);
+        }
     }
 
     PairGeometry operator()(int from, int to) const {
@@ -54,13 +68,28 @@ class PairGeometer {
         if (geographic_) {
             ij.azimuth_deg = line.azimuth1_deg;
             ij.back_azimuth_deg = wrap360(line.azimuth2_deg + 180.0);
+            ij.grid_m = line.distance_m;
         } else {
             ij.azimuth_deg = wrap360(
                 std::atan2(points_[j].x - points_[i].x, points_[j].y - points_[i].y) * kRadToDeg);
             ij.back_azimuth_deg = wrap360(ij.azimuth_deg + 180.0);
+            ij.grid_m =
+                std::hypot(points_[j].x - points_[i].x, points_[j].y - points_[i].y) * unit_m_;
+            ij.scale_factor = line.distance_m > 0 ? ij.grid_m / line.distance_m : 1.0;
         }
+        const double true_ij = line.azimuth1_deg, true_ji = wrap360(line.azimuth2_deg + 180.0);
+        ij.slope_m =
+            EarthModel::sphereChordM(eye_[i], eye_[j], line.distance_m,
+                                     earth_.radiusAlong(stations_[i].latitude_deg, true_ij));
         if (line.distance_m == 0)
             ij.azimuth_deg = ij.back_azimuth_deg = std::numeric_limits<double>::quiet_NaN();
+        // The direction asked for: from `from`'s eye towards `to`'s.
+        const double true_az = from == i ? true_ij : true_ji;
+        const double r_eff = earth_.effectiveRadius(stations_[from].latitude_deg, true_az);
+        ij.azimuth_true_deg =
+            line.distance_m == 0 ? std::numeric_limits<double>::quiet_NaN() : true_az;
+        ij.zenith_deg = 90.0 - EarthModel::sphereElevationAngleDeg(eye_[from], eye_[to],
+                                                                   line.distance_m, r_eff);
         if (from != i)
             std::swap(ij.azimuth_deg, ij.back_azimuth_deg);
         return ij;
@@ -68,9 +97,13 @@ class PairGeometer {
 
   private:
     const std::vector<MapPoint>& points_;
+    const std::vector<Observer>& stations_;
+    const EarthModel& earth_;
     std::vector<MapPoint> lonlat_;
+    std::vector<double> eye_;
     Geodesic geo_;
     bool geographic_;
+    double unit_m_;
 };
 
 /// The matrix, streamed row by row into its temporary file: one row per ordered pair within
@@ -80,7 +113,9 @@ void writeMatrix(RunContext& ctx, const IntervisRunOptions& s,
                  const PairGeometer& pairGeometry) {
     const int n = static_cast<int>(stations.size());
     TextStream& matrix = ctx.outputs->openText(s.matrix);
-    matrix.write("from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg\n");
+    matrix.write(
+        "from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg,reason,"
+        "azimuth_true_deg,zenith_deg,slope_distance_m,grid_distance_m,scale_factor\n");
     for (int i = 0; i < n; ++i) {
         throwIfCancelled(*ctx.progress);
         std::string rows;
@@ -89,7 +124,14 @@ void writeMatrix(RunContext& ctx, const IntervisRunOptions& s,
             rows += csvField(stations[i].name) + "," + csvField(stations[j].name) + "," +
                     (v.visible ? "yes" : "no") + "," + printfFinite("%.3f", v.margin_m) + "," +
                     printfFinite("%.3f", p.distance_m) + "," + printfFinite("%.4f", p.azimuth_deg) +
-                    "," + printfFinite("%.4f", p.back_azimuth_deg) + "\n";
+                    "," + printfFinite("%.4f", p.back_azimuth_deg) + "," +
+                    (!v.judged   ? "beyond reach"
+                     : v.visible ? "clear"
+                                 : "blocked") +
+                    "," + printfFinite("%.4f", p.azimuth_true_deg) + "," +
+                    printfFinite("%.5f", p.zenith_deg) + "," + printfFinite("%.3f", p.slope_m) +
+                    "," + printfFinite("%.3f", p.grid_m) + "," +
+                    printfFinite("%.8f", p.scale_factor) + "\n";
         };
         if (s.all_pairs) {
             for (int j = 0; j < n; ++j)
@@ -337,7 +379,7 @@ RunReport IntervisRun::run(const RunEnv& env) {
     const IntervisResult res = computeIntervisibility(ctx.dem.z, ctx.dem.geometry, ctx.earth,
                                                       stations_in_window, opt, *ctx.progress);
     // Write (to temporaries, renamed by finishRun).
-    const PairGeometer pairGeometry(ctx, placed.points_dem);
+    const PairGeometer pairGeometry(ctx, placed.points_dem, stations);
     writeMatrix(ctx, s, stations, res, pairGeometry);
     const PairTally tally = tallyPairs(res, stations);
     if (!s.lines.empty()) {

@@ -60,12 +60,14 @@ TEST(IntervisCliTest, MatrixHasOneRowPerOrderedPairWithPROJDistances) {
     const auto rows = readCsv(dir.file("m.csv"));
     ASSERT_EQ(rows.size(), 1u + 7 * 6);
     EXPECT_EQ(firstLine(readFile(dir.file("m.csv"))),
-              "from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg");
+              "from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg,reason,"
+              "azimuth_true_deg,zenith_deg,slope_distance_m,grid_distance_m,scale_factor");
     std::map<std::pair<std::string, std::string>, std::vector<std::string>> by_pair;
     int visible = 0;
     for (std::size_t i = 1; i < rows.size(); ++i) {
         const auto& f = rows[i];
-        ASSERT_EQ(f.size(), 7u);
+        ASSERT_EQ(f.size(), 13u);
+        EXPECT_EQ(f[7], f[2] == "yes" ? "clear" : "blocked");
         ASSERT_TRUE(kDemo.count(f[0]) && kDemo.count(f[1])) << f[0] << " / " << f[1];
         EXPECT_TRUE(f[2] == "yes" || f[2] == "no");
         EXPECT_EQ(f[2] == "yes", std::stod(f[3]) >= 0);
@@ -309,4 +311,79 @@ TEST(IntervisCliTest, PointsInAnUnknownFormatAreRefusedBeforeAnyWork) {
     EXPECT_NE(firstLine(r.err).find("--points"), std::string::npos) << r.err;
     EXPECT_NE(firstLine(r.err).find(".gpkg"), std::string::npos) << r.err;
     EXPECT_TRUE(dir.entries().empty());
+}
+
+// Issue 15 item 6: survey quantities of each pair. Outside checks: the scale factor against PROJ's
+// own point scale factors (proj_factors) averaged along the line by Simpson's rule; the true
+// azimuth against PROJ's geodesic solver (geod_inverse); the zenith angle and slope distance
+// against the exact geometry of a sphere of Euler's radius along the true azimuth (docs/design.md,
+// curvature and refraction; Euler's radius 1/R = cos²α/M + sin²α/N, WGS 84's M and N).
+TEST(IntervisCliTest, SurveyQuantitiesAgreeWithProjAndExactGeometry) {
+    ScratchDir dir;
+    CliResult r =
+        runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations",
+                    testRaster("demo_sites.csv"), "-o", dir.file("m.csv"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto summary = nlohmann::json::parse(r.out);
+    std::map<std::string, double> eye;
+    for (const auto& st : summary["stations"])
+        eye[st["name"]] = st["eye_m"].get<double>();
+    PJ_CONTEXT* ctx = proj_context_create();
+    // UTM zone 30N on WGS 84, the projection of EPSG:32630, as a bare operation (fast factors).
+    PJ* utm = proj_create(ctx, "+proj=utm +zone=30 +ellps=WGS84");
+    PJ* to_ll = proj_normalize_for_visualization(
+        ctx, proj_create_crs_to_crs(ctx, "EPSG:32630", "EPSG:4326", nullptr));
+    auto lonLat = [&](double x, double y) {
+        const PJ_COORD c = proj_trans(to_ll, PJ_FWD, proj_coord(x, y, 0, 0));
+        return LonLat{c.xy.x, c.xy.y};
+    };
+    auto pointScale = [&](double lon, double lat) {
+        const PJ_FACTORS f =
+            proj_factors(utm, proj_coord(lon * M_PI / 180, lat * M_PI / 180, 0, 0));
+        return f.meridional_scale;
+    };
+    const double a = 6378137.0, e2 = 0.00669437999014;
+    const auto rows = readCsv(dir.file("m.csv"));
+    std::map<std::pair<std::string, std::string>, double> slope;
+    for (std::size_t i = 1; i < rows.size(); ++i) {
+        const auto& f = rows[i];
+        const auto pa = kDemo.at(f[0]), pb = kDemo.at(f[1]);
+        const LonLat la = lonLat(pa.first, pa.second);
+        const LonLat lb = lonLat(pb.first, pb.second);
+        const LonLat mid = lonLat((pa.first + pb.first) / 2, (pa.second + pb.second) / 2);
+        const double k = (pointScale(la.lon, la.lat) + 4 * pointScale(mid.lon, mid.lat) +
+                          pointScale(lb.lon, lb.lat)) /
+                         6;
+        EXPECT_NEAR(std::stod(f[12]), k, 2e-7) << f[0] << " → " << f[1];
+        const double grid = std::hypot(pb.first - pa.first, pb.second - pa.second);
+        EXPECT_NEAR(std::stod(f[11]), grid, 1e-3);
+        // True azimuth: PROJ's geodesic.
+        geod_geodesic g;
+        geod_init(&g, a, 1 / 298.257223563);
+        double s12, az1, az2;
+        geod_inverse(&g, la.lat, la.lon, lb.lat, lb.lon, &s12, &az1, &az2);
+        EXPECT_NEAR(std::stod(f[8]), az1 < 0 ? az1 + 360 : az1, 1e-4);
+        // Zenith angle on the sphere of Euler's radius along the true azimuth, k = 0.13.
+        const double phi = la.lat * M_PI / 180, alpha = az1 * M_PI / 180;
+        const double w = 1 - e2 * std::sin(phi) * std::sin(phi);
+        const double M = a * (1 - e2) / std::pow(w, 1.5), N = a / std::sqrt(w);
+        const double R =
+            1 / (std::cos(alpha) * std::cos(alpha) / M + std::sin(alpha) * std::sin(alpha) / N);
+        const double Re = R / (1 - 0.13), th = s12 / Re;
+        const double h1 = eye.at(f[0]), h2 = eye.at(f[1]);
+        const double elev =
+            std::atan2((Re + h2) * std::cos(th) - (Re + h1), (Re + h2) * std::sin(th));
+        EXPECT_NEAR(std::stod(f[9]), 90 - elev * 180 / M_PI, 2e-5) << f[0] << " → " << f[1];
+        // Slope distance: the chord between the eyes on the true sphere.
+        const double T = s12 / R;
+        const double chord = std::sqrt((R + h1) * (R + h1) + (R + h2) * (R + h2) -
+                                       2 * (R + h1) * (R + h2) * std::cos(T));
+        EXPECT_NEAR(std::stod(f[10]), chord, 2e-3);
+        slope[{f[0], f[1]}] = std::stod(f[10]);
+    }
+    for (const auto& [key, v] : slope)
+        EXPECT_EQ(v, slope.at({key.second, key.first})) << "the same both ways";
+    proj_destroy(to_ll);
+    proj_destroy(utm);
+    proj_context_destroy(ctx);
 }

@@ -2,6 +2,7 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <limits>
 
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/Units.hpp"
@@ -141,4 +142,18 @@ TEST(EarthModelTest, ParabolicDropWithinTenCentimetresAtHundredKilometres) {
     EXPECT_NEAR(diff, 5 * std::pow(1e5, 4) / (24 * std::pow(r_eff, 3)), 1e-3);
     // Bulge of a 10 km chord at its middle: d1 d2 / 2R′.
     EXPECT_NEAR(EarthModel::sphereBulgeM(5000, 5000, r_eff), 5000.0 * 5000.0 / (2 * r_eff), 1e-4);
+}
+
+// The slope distance between two eyes is the chord of exact geometry: the two points placed in a
+// plane through the sphere's centre, their distance by Pythagoras (exact geometry, no source
+// needed); and √(d² + Δh²) on a flat Earth.
+TEST(EarthModelTest, ChordBetweenTwoEyesIsTheStraightLine) {
+    const double R = 6371000.0;
+    for (double d : {10.0, 1000.0, 25000.0, 300000.0}) {
+        const double h1 = 120.0, h2 = 35.5, th = d / R;
+        const double x = (R + h2) * std::sin(th), y = (R + h2) * std::cos(th) - (R + h1);
+        EXPECT_NEAR(EarthModel::sphereChordM(h1, h2, d, R), std::hypot(x, y), 1e-6 * d) << d;
+    }
+    EXPECT_DOUBLE_EQ(EarthModel::sphereChordM(10, 13, 4, std::numeric_limits<double>::infinity()),
+                     5.0);
 }

@@ -75,6 +75,11 @@ class EarthModel {
     /// Elevation angle (degrees) from a point at height h1 to one at height h2, `d_m` apart
     /// along the surface: atan2((R′+h2)cos θ − (R′+h1), (R′+h2) sin θ), θ = d/R′.
     static double sphereElevationAngleDeg(double h1_m, double h2_m, double d_m, double r_eff_m);
+    /// Straight-line (slope) distance between a point at height h1 and one at height h2, `d_m`
+    /// apart along a sphere of radius `r_m` (the true radius: the chord, as an instrument
+    /// measures it): √((R+h1)² + (R+h2)² − 2(R+h1)(R+h2)cos θ), θ = d/R; √(d² + (h2−h1)²) when
+    /// flat.
+    static double sphereChordM(double h1_m, double h2_m, double d_m, double r_m);
     /// Dip of the sea horizon from height h: arccos(R′/(R′+h)), degrees.
     static double sphereDipDeg(double h_m, double r_eff_m);
     /// Distance along the surface to the sea horizon from height h: R′·arccos(R′/(R′+h)), m.
