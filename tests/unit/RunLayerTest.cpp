@@ -185,8 +185,12 @@ TEST(RunLayerTest, IntervisOverTheFlatSeaWritesTheMatrixAndCountsThePairs) {
     const nlohmann::json high = intervis(49.6);
     EXPECT_EQ(high["pairs_visible"], 2);  // A–B and A–C
     const std::string matrix = readFile(dir.file("matrix.csv"));
-    EXPECT_EQ(matrix.rfind("from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg\n", 0),
-              0u);
+    EXPECT_EQ(
+        matrix.rfind("from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg,reason,"
+                     "azimuth_true_deg,zenith_deg,slope_distance_m,grid_distance_m,"
+                     "scale_factor\n",
+                     0),
+        0u);
     EXPECT_NE(matrix.find("\nA,B,yes,"), std::string::npos);
 }
 
