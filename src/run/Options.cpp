@@ -146,6 +146,18 @@ void addOutputOptions(OptionTable& t, CommonOptions& o, unsigned which) {
                     .showDefault()
                     .typeName("dem|reach")
                     .checkedBy(oneOfCheck({"dem", "reach"})));
+    t.push_back(OptionDecl("--format", &o.format,
+                           "layout of the output rasters: GTiff (tiled GeoTIFF) or COG "
+                           "(cloud-optimised GeoTIFF, always with overviews; written whole, so "
+                           "--extent dem writes every block)",
+                           "Output")
+                    .showDefault()
+                    .typeName("GTiff|COG")
+                    .checkedBy(oneOfCheck({"GTiff", "COG"})));
+    t.push_back(OptionDecl("--overviews", &o.overviews,
+                           "add internal overviews (reduced copies for quick display): nearest "
+                           "for classes and counts, average for continuous values",
+                           "Output"));
 }
 
 }  // namespace

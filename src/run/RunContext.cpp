@@ -319,6 +319,12 @@ RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType 
     spec.crs_wkt = ctx.dem.crs.wkt;
     spec.metadata = rasterMetadata(ctx.run);
     spec.creation_options = ctx.options.creation_options;
+    // Colours for class layers (1/0/255); count layers get their ramp from the command.
+    if (type == PixelType::Byte)
+        spec.palette = classPalette();
+    spec.layout = ctx.options.format == "COG" ? RasterLayout::Cog : RasterLayout::GTiff;
+    if (ctx.options.overviews || spec.layout == RasterLayout::Cog)
+        spec.overviews = type == PixelType::Float32 ? Overviews::Average : Overviews::Nearest;
     // --threads also bounds GDAL's compression threads (the default compresses on every core).
     bool threads_given = false;
     for (const auto& co : spec.creation_options)
@@ -344,8 +350,11 @@ void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, cons
 }
 
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
-               const void* data, const std::string& description, const std::string& unit) {
+               const void* data, const std::string& description, const std::string& unit,
+               int max_count) {
     RasterSpec spec = outputSpec(ctx, path, type, 1, nodata);
+    if (max_count > 0)
+        spec.palette = countPalette(max_count);
     spec.band_descriptions = {description};
     spec.unit_type = unit;
     RasterWriter writer(spec);

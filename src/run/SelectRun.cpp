@@ -347,7 +347,8 @@ RunReport SelectRun::run(const RunEnv& env) {
     describeChoice(ctx, s, g, candidates, res);
     // Write: count raster, ranked CSV (temporaries, renamed by finishRun); summary.
     writeGrid(ctx, s.output, PixelType::UInt16, kCountNoData, res.count.data(),
-              "number of chosen sites that see the cell (65535: not evaluated)");
+              "number of chosen sites that see the cell (65535: not evaluated)", "",
+              std::max(1, static_cast<int>(res.ranked.size())));
     if (!s.csv.empty())
         writeTextFile(ctx, s.csv, rankedCsv(res, placed.rows));
     const nlohmann::json j = summaryJson(ctx, s, g, placed, res);

@@ -130,8 +130,11 @@ class ViewshedRasters {
     explicit ViewshedRasters(RunContext& ctx) : ctx_(ctx) {}
     /// Writes `data` (a grid over the window read) into a new one-band raster.
     void write(const std::string& path, PixelType type, double nodata,
-               const std::string& description, const std::string& unit, const void* data) {
+               const std::string& description, const std::string& unit, const void* data,
+               int max_count = 0) {
         RasterSpec spec = outputSpec(ctx_, path, type, 1, nodata);
+        if (max_count > 0)
+            spec.palette = countPalette(max_count);
         spec.band_descriptions = {description};
         spec.unit_type = unit;
         writers_.push_back(std::make_unique<RasterWriter>(spec));
@@ -259,7 +262,7 @@ std::string runSites(RunContext& ctx, const ViewshedRunOptions& st,
                   "number of the " + std::to_string(placed.size()) +
                       " sites that see the cell; 65535 no data (outside every site's reach or DEM "
                       "no-data)",
-                  "", res.count.data());
+                  "", res.count.data(), static_cast<int>(placed.size()));
     res.count = Grid<std::uint16_t>();
     if (opt.want_margin) {
         rasters.write(st.margin, PixelType::Float32, std::numeric_limits<float>::quiet_NaN(),

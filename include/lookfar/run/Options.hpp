@@ -80,7 +80,7 @@ inline constexpr int kMaxThreads = 1024;
 enum CommonSet : unsigned {
     kGeometryOptions = 1u << 0,  ///< --refraction --earth-model --earth-radius --reach
     kHeightOptions = 1u << 1,    ///< --observer-height --target-height
-    kOutputOptions = 1u << 2,    ///< --co --extent (raster outputs)
+    kOutputOptions = 1u << 2,    ///< --co --extent --format --overviews (raster outputs)
     kMethodOption = 1u << 3,     ///< --method
     kAllCommon = 0xFFu,
 };
@@ -106,6 +106,8 @@ struct CommonOptions {
     std::vector<std::string> creation_options;
     std::string method = "fast";
     std::string extent;  ///< --extent: "dem" or "reach"; empty for commands without rasters
+    std::string format = "GTiff";  ///< --format: GTiff, or COG (cloud-optimised, with overviews)
+    bool overviews = false;        ///< --overviews: internal overviews in a GTiff
 };
 
 /// The DEM argument and the common options of `which` over `o`, in the order --help lists them.

@@ -149,8 +149,10 @@ nlohmann::json extentJson(const RunContext& ctx);
 void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data);
 /// Writes a one-band grid over the window read (uint8_t, uint16_t or float) into its temporary
 /// file; finishRun() renames it with the run's other outputs.
+/// A count layer (`max_count` > 0) carries countPalette(max_count).
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
-               const void* data, const std::string& description, const std::string& unit = "");
+               const void* data, const std::string& description, const std::string& unit = "",
+               int max_count = 0);
 
 /// Writes the summary file (if --summary) and renames every finished output of the run into
 /// place together (ctx.outputs); returns the summary (with `extent` and `elapsed_s`) and `table`

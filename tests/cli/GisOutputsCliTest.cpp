@@ -1,0 +1,104 @@
+// Rasters GIS users open as they are (issue 15 item 3), through the commands: colour tables on
+// class and count layers, internal overviews, the cloud-optimised layout. Read back with GDAL;
+// GDAL reports LAYOUT=COG in IMAGE_STRUCTURE for a file in the COG layout (GDAL COG driver
+// documentation). The values are the same in every layout (the contract: docs/design.md).
+#include <gdal.h>
+#include <gtest/gtest.h>
+
+#include <cstring>
+
+#include "../support/CliRunner.hpp"
+#include "../support/RasterFiles.hpp"
+
+using namespace lookfar::testing;
+
+namespace {
+
+const std::string kDemo = testRaster("demo_coast.tif");
+const std::string kSites = testRaster("demo_sites.csv");
+
+struct Layout {
+    std::string layout;  // IMAGE_STRUCTURE LAYOUT ("" for a plain GeoTIFF)
+    int overviews = 0;
+    bool palette = false;
+    int palette_entries = 0;
+};
+
+Layout layoutOf(const std::string& path) {
+    GDALAllRegister();
+    Layout l;
+    GDALDatasetH ds = GDALOpen(path.c_str(), GA_ReadOnly);
+    EXPECT_NE(ds, nullptr) << path;
+    if (!ds)
+        return l;
+    const char* v = GDALGetMetadataItem(ds, "LAYOUT", "IMAGE_STRUCTURE");
+    l.layout = v ? v : "";
+    GDALRasterBandH b = GDALGetRasterBand(ds, 1);
+    l.overviews = GDALGetOverviewCount(b);
+    if (GDALColorTableH t = GDALGetRasterColorTable(b)) {
+        l.palette = true;
+        l.palette_entries = GDALGetColorEntryCount(t);
+    }
+    GDALClose(ds);
+    return l;
+}
+
+}  // namespace
+
+TEST(GisOutputsCliTest, ClassAndCountLayersCarryColourTables) {
+    ScratchDir dir;
+    CliResult r = runLookfar({"viewshed", kDemo, "--observer", "425087.5,5597212.5", "-o",
+                              dir.file("v.tif"), "--margin", dir.file("m.tif"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_TRUE(layoutOf(dir.file("v.tif")).palette);
+    EXPECT_FALSE(layoutOf(dir.file("m.tif")).palette) << "continuous values have no palette";
+    r = runLookfar({"viewshed", kDemo, "--sites", kSites, "-o", dir.file("c.tif"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_TRUE(layoutOf(dir.file("c.tif")).palette);
+    r = runLookfar({"select", kDemo, "--candidates", kSites, "--count", "2", "-o",
+                    dir.file("s.tif"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_TRUE(layoutOf(dir.file("s.tif")).palette);
+}
+
+TEST(GisOutputsCliTest, OverviewsAndCloudOptimisedLayoutKeepTheValues) {
+    ScratchDir dir;
+    const std::vector<std::string> base{"viewshed", kDemo, "--observer", "425087.5,5597212.5",
+                                        "--quiet"};
+    auto run = [&](const std::string& stem, std::vector<std::string> extra) {
+        std::vector<std::string> args = base;
+        args.insert(args.end(),
+                    {"-o", dir.file(stem + "-v.tif"), "--margin", dir.file(stem + "-m.tif")});
+        args.insert(args.end(), extra.begin(), extra.end());
+        const CliResult r = runLookfar(args);
+        EXPECT_EQ(r.exit_code, 0) << r.err;
+    };
+    run("plain", {});
+    run("ovr", {"--overviews"});
+    run("cog", {"--format", "COG"});
+    EXPECT_EQ(layoutOf(dir.file("plain-v.tif")).overviews, 0);
+    EXPECT_GE(layoutOf(dir.file("ovr-v.tif")).overviews, 1);
+    EXPECT_GE(layoutOf(dir.file("ovr-m.tif")).overviews, 1);
+    EXPECT_EQ(layoutOf(dir.file("cog-v.tif")).layout, "COG");
+    EXPECT_GE(layoutOf(dir.file("cog-m.tif")).overviews, 1);
+    for (const char* layer : {"-v.tif", "-m.tif"}) {
+        const auto plain = readRaster(dir.file(std::string("plain") + layer));
+        for (const char* other : {"ovr", "cog"}) {
+            const auto o = readRaster(dir.file(other + std::string(layer)));
+            ASSERT_EQ(o.values[0].size(), plain.values[0].size());
+            EXPECT_EQ(std::memcmp(o.values[0].data(), plain.values[0].data(),
+                                  plain.values[0].size() * sizeof(double)),
+                      0)
+                << other << layer;
+        }
+    }
+}
+
+TEST(GisOutputsCliTest, UnknownFormatIsRefusedBeforeAnyWork) {
+    ScratchDir dir;
+    const CliResult r = runLookfar({"viewshed", kDemo, "--observer", "425087.5,5597212.5", "-o",
+                                    dir.file("v.tif"), "--format", "PNG"});
+    EXPECT_EQ(r.exit_code, 2) << r.err;
+    EXPECT_NE(firstLine(r.err).find("--format"), std::string::npos) << r.err;
+    EXPECT_TRUE(dir.entries().empty());
+}
