@@ -8,7 +8,9 @@
 #include <vector>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/io/VectorOutput.hpp"
 #include "lookfar/report/TextTable.hpp"
 #include "lookfar/stats/ViewshedStats.hpp"
 #include "lookfar/viewshed/MultiViewshed.hpp"
@@ -180,6 +182,25 @@ std::string singleTable(const RunContext& ctx, const PlacedSite& p, const Viewsh
     return t.render() + "\n" + bandTable(s);
 }
 
+/// The areas of `values` (cells ≥ 0) as polygons for --polygons, handed to the run's outputs;
+/// returns the summary's entry.
+nlohmann::json writePolygons(RunContext& ctx, const std::string& path,
+                             const Grid<std::int32_t>& values, const std::string& value_field,
+                             const std::string& observers) {
+    using K = VectorField::Kind;
+    const VectorLayerSpec spec{path,
+                               "visible_areas",
+                               ctx.dem.crs.wkt,
+                               {{value_field, K::Integer}, {"observers", K::Text}},
+                               "lookfar viewshed: areas seen from " + observers};
+    const AreaPolygons written = writeAreaPolygons(spec, values, ctx.dem.geometry, {observers});
+    ctx.outputs->adopt(written.temp, path);
+    return {{"path", path},
+            {"features", written.features},
+            {"cells", written.cells},
+            {"area_m2", written.area_m2}};
+}
+
 /// One observer: the engine, its rasters, its summary entry; returns the table.
 std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const PlacedSite& p,
                       const ViewshedOptions& opt, ViewshedRasters& rasters, nlohmann::json& j) {
@@ -193,6 +214,10 @@ std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const Place
                   "visibility from " + p.observer.name +
                       ": 1 visible, 0 hidden, 255 no data (outside reach or DEM no-data)",
                   "", grids.visible.data());
+    if (!st.polygons.empty())
+        j["polygons"] = writePolygons(
+            ctx, st.polygons, areaValues(grids.visible, [](std::uint8_t v) { return v == 1; }),
+            "visible", p.observer.name);
     grids.visible = Grid<std::uint8_t>();
     if (opt.want_margin) {
         rasters.write(st.margin, PixelType::Float32, nan, kMarginText, "m", grids.margin.data());
@@ -263,6 +288,15 @@ std::string runSites(RunContext& ctx, const ViewshedRunOptions& st,
                       " sites that see the cell; 65535 no data (outside every site's reach or DEM "
                       "no-data)",
                   "", res.count.data(), static_cast<int>(placed.size()));
+    if (!st.polygons.empty()) {
+        std::string names;
+        for (const PlacedSite& p : placed)
+            names += (names.empty() ? "" : "; ") + p.observer.name;
+        j["polygons"] = writePolygons(
+            ctx, st.polygons,
+            areaValues(res.count, [](std::uint16_t v) { return v >= 1 && v != kNoCount; }), "count",
+            names);
+    }
     res.count = Grid<std::uint16_t>();
     if (opt.want_margin) {
         rasters.write(st.margin, PixelType::Float32, std::numeric_limits<float>::quiet_NaN(),
@@ -363,6 +397,12 @@ OptionTable ViewshedRun::declare() {
                            "point, degrees (single observer)",
                            "Output")
                     .fileType());
+    t.push_back(OptionDecl("--polygons", &st.polygons,
+                           "the visible area as polygons (with --sites: one per connected area "
+                           "seen by the same number of sites), each with its true ground area: "
+                           ".gpkg (GeoPackage, the DEM's CRS) or .geojson (WGS 84 lon/lat)",
+                           "Output")
+                    .fileType());
     return t;
 }
 
@@ -370,8 +410,12 @@ RunReport ViewshedRun::run(const RunEnv& env) {
     const ViewshedRunOptions& st = options;
     MapPoint given{};
     const bool single = checkObserverOptions(st, &given);
-    std::vector<NamedPath> outputs = {
-        {"-o", st.output}, {"--margin", st.margin}, {"--angle", st.angle}};
+    std::vector<NamedPath> outputs = {{"-o", st.output},
+                                      {"--margin", st.margin},
+                                      {"--angle", st.angle},
+                                      {"--polygons", st.polygons}};
+    if (!st.polygons.empty())
+        vectorFormatFor(st.polygons, "--polygons");  // exit 2 before any work
     std::vector<std::string> extra_inputs;
     if (!single)
         extra_inputs.push_back(st.sites);

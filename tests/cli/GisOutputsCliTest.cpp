@@ -6,9 +6,11 @@
 #include <gtest/gtest.h>
 
 #include <cstring>
+#include <nlohmann/json.hpp>
 
 #include "../support/CliRunner.hpp"
 #include "../support/RasterFiles.hpp"
+#include "../support/VectorFiles.hpp"
 
 using namespace lookfar::testing;
 
@@ -100,5 +102,53 @@ TEST(GisOutputsCliTest, UnknownFormatIsRefusedBeforeAnyWork) {
                                     dir.file("v.tif"), "--format", "PNG"});
     EXPECT_EQ(r.exit_code, 2) << r.err;
     EXPECT_NE(firstLine(r.err).find("--format"), std::string::npos) << r.err;
+    EXPECT_TRUE(dir.entries().empty());
+}
+
+// Issue 15 item 1: the visible area as polygons. Their areas add up to the summary's visible area
+// (the same cells), and OGR's own planar area of the traced outlines agrees (projected DEM: the
+// outlines follow cell edges, so within rounding).
+TEST(GisOutputsCliTest, VisibleAreaPolygonsAddUpToTheSummary) {
+    ScratchDir dir;
+    CliResult r =
+        runLookfar({"viewshed", kDemo, "--observer", "425087.5,5597212.5", "-o", dir.file("v.tif"),
+                    "--polygons", dir.file("v.gpkg"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    auto j = nlohmann::json::parse(r.out);
+    const double visible = j["observers"][0]["visible_area_m2"].get<double>();
+    double attr = 0, planar = 0;
+    const auto features = readVectorFeatures(dir.file("v.gpkg"));
+    for (const auto& f : features) {
+        EXPECT_EQ(f.fields.at("visible"), "1");
+        EXPECT_EQ(f.fields.at("observers"), "observer");
+        attr += std::stod(f.fields.at("area_m2"));
+        planar += f.planar_area;
+    }
+    EXPECT_EQ(features.size(), j["polygons"]["features"].get<std::size_t>());
+    EXPECT_NEAR(attr, visible, 0.005 * visible);
+    EXPECT_NEAR(planar, visible, 1e-6 * visible);
+
+    r = runLookfar({"viewshed", kDemo, "--sites", kSites, "-o", dir.file("c.tif"), "--polygons",
+                    dir.file("c.geojson"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    j = nlohmann::json::parse(r.out);
+    attr = 0;
+    for (const auto& f : readVectorFeatures(dir.file("c.geojson"))) {
+        const int count = std::stoi(f.fields.at("count"));
+        EXPECT_GE(count, 1);
+        EXPECT_LE(count, 7);
+        EXPECT_GT(f.ring_signed_area, 0) << "RFC 7946: exterior rings counter-clockwise";
+        attr += std::stod(f.fields.at("area_m2"));
+    }
+    const double any = j["coverage"]["area_seen_by_any_m2"].get<double>();
+    EXPECT_NEAR(attr, any, 0.005 * any);
+}
+
+TEST(GisOutputsCliTest, PolygonsInAnUnknownFormatAreRefusedBeforeAnyWork) {
+    ScratchDir dir;
+    const CliResult r = runLookfar({"viewshed", kDemo, "--observer", "425087.5,5597212.5", "-o",
+                                    dir.file("v.tif"), "--polygons", dir.file("v.shp")});
+    EXPECT_EQ(r.exit_code, 2) << r.err;
+    EXPECT_NE(firstLine(r.err).find("--polygons"), std::string::npos) << r.err;
     EXPECT_TRUE(dir.entries().empty());
 }

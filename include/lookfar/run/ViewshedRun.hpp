@@ -9,10 +9,11 @@ struct ViewshedRunOptions {
     CommonOptions common;
     std::string observer;  ///< "X,Y" in --crs (one observer)
     std::string name = "observer";
-    std::string sites;   ///< CSV of sites (several observers)
-    std::string output;  ///< -o: visibility (one observer) or count raster (sites)
-    std::string margin;  ///< margin raster, empty = not written
-    std::string angle;   ///< elevation-angle raster (one observer), empty = not written
+    std::string sites;     ///< CSV of sites (several observers)
+    std::string output;    ///< -o: visibility (one observer) or count raster (sites)
+    std::string margin;    ///< margin raster, empty = not written
+    std::string angle;     ///< elevation-angle raster (one observer), empty = not written
+    std::string polygons;  ///< visible areas as polygons (.gpkg or .geojson), empty = none
 };
 
 class ViewshedRun final : public RunCommand {
