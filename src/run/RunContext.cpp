@@ -362,6 +362,23 @@ void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, d
     ctx.outputs->addRaster(writer);
 }
 
+nlohmann::json writePolygons(RunContext& ctx, const std::string& path,
+                             const Grid<std::int32_t>& values, const std::string& value_field,
+                             const std::string& description, const std::string& observers) {
+    using K = VectorField::Kind;
+    const VectorLayerSpec spec{path,
+                               "visible_areas",
+                               ctx.dem.crs.wkt,
+                               {{value_field, K::Integer}, {"observers", K::Text}},
+                               description};
+    const AreaPolygons written = writeAreaPolygons(spec, values, ctx.dem.geometry, {observers});
+    ctx.outputs->adopt(written.temp, path);
+    return {{"path", path},
+            {"features", written.features},
+            {"cells", written.cells},
+            {"area_m2", written.area_m2}};
+}
+
 void writeTextFile(const RunContext& ctx, const std::string& path, const std::string& content) {
     ctx.outputs->addText(path, content);
 }

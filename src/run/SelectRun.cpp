@@ -317,8 +317,59 @@ OptionTable SelectRun::declare() {
                            "cumulative_percent)",
                            "Output")
                     .fileType());
+    t.push_back(OptionDecl("--polygons", &s.polygons,
+                           "the chosen sites' coverage as polygons (areas seen by the same number "
+                           "of chosen sites, with their true ground areas): .gpkg or .geojson",
+                           "Output")
+                    .fileType());
+    t.push_back(OptionDecl("--points", &s.points,
+                           "the chosen sites as points with their rank and areas: .gpkg or "
+                           ".geojson",
+                           "Output")
+                    .fileType());
     return t;
 }
+
+namespace {
+
+/// --polygons and --points: the chosen sites' coverage and the sites themselves.
+void writeChosenVectors(RunContext& ctx, const SelectRunOptions& s, const PlacedSites& placed,
+                        const SiteSelectionResult& res, nlohmann::json& j) {
+    std::string names;
+    for (const SelectedSite& c : res.ranked)
+        names += (names.empty() ? "" : "; ") + placed.rows[c.candidate].name;
+    if (!s.polygons.empty()) {
+        j["polygons"] = writePolygons(
+            ctx, s.polygons,
+            areaValues(res.count, [](std::uint16_t v) { return v >= 1 && v != kCountNoData; }),
+            "count", "lookfar select: ground seen by the chosen sites", names);
+    }
+    if (s.points.empty())
+        return;
+    using K = VectorField::Kind;
+    const VectorLayerSpec spec{s.points,
+                               "chosen_sites",
+                               ctx.dem.crs.wkt,
+                               {{"rank", K::Integer},
+                                {"name", K::Text},
+                                {"height_m", K::Real},
+                                {"marginal_area_m2", K::Real},
+                                {"cumulative_area_m2", K::Real},
+                                {"cumulative_percent", K::Real}},
+                               "lookfar select: the chosen sites in the order chosen"};
+    std::vector<VectorFeature> features;
+    for (std::size_t r = 0; r < res.ranked.size(); ++r) {
+        const SelectedSite& c = res.ranked[r];
+        const MapPoint& p = placed.points_dem[c.candidate];
+        features.push_back({{{p.x, p.y}},
+                            {static_cast<long long>(r + 1), placed.rows[c.candidate].name,
+                             placed.observers[c.candidate].height_m, c.marginal_area_m2,
+                             c.cumulative_area_m2, c.cumulative_percent}});
+    }
+    ctx.outputs->adopt(writeVectorFeatures(spec, features), s.points);
+}
+
+}  // namespace
 
 RunReport SelectRun::run(const RunEnv& env) {
     const SelectRunOptions& s = options;
@@ -327,8 +378,14 @@ RunReport SelectRun::run(const RunEnv& env) {
     std::vector<std::string> inputs = {s.candidates};
     if (!s.weight.empty())
         inputs.push_back(s.weight);
-    RunContext ctx = prepareRun(env, "select", s.common, {{"-o", s.output}, {"--csv", s.csv}},
-                                inputs, DemCells::Later);
+    if (!s.polygons.empty())
+        vectorFormatFor(s.polygons, "--polygons");  // exit 2 before any work
+    if (!s.points.empty())
+        vectorFormatFor(s.points, "--points");
+    RunContext ctx = prepareRun(
+        env, "select", s.common,
+        {{"-o", s.output}, {"--csv", s.csv}, {"--polygons", s.polygons}, {"--points", s.points}},
+        inputs, DemCells::Later);
     const PlacedSites placed =
         placeSitesCsv(ctx, s.candidates, "candidate", "the ranking needs unique names");
     const std::vector<Observer>& candidates = placed.observers;  // cells of the whole DEM
@@ -351,7 +408,9 @@ RunReport SelectRun::run(const RunEnv& env) {
               std::max(1, static_cast<int>(res.ranked.size())));
     if (!s.csv.empty())
         writeTextFile(ctx, s.csv, rankedCsv(res, placed.rows));
-    const nlohmann::json j = summaryJson(ctx, s, g, placed, res);
+    nlohmann::json j = summaryJson(ctx, s, g, placed, res);
+    if (!s.polygons.empty() || !s.points.empty())
+        writeChosenVectors(ctx, s, placed, res, j);
     const std::string table = summaryTable(ctx, g, placed.rows, res);
     if (g.has_coverage && !res.coverage_reached) {
         ctx.progress->warn(

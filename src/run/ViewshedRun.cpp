@@ -182,25 +182,6 @@ std::string singleTable(const RunContext& ctx, const PlacedSite& p, const Viewsh
     return t.render() + "\n" + bandTable(s);
 }
 
-/// The areas of `values` (cells ≥ 0) as polygons for --polygons, handed to the run's outputs;
-/// returns the summary's entry.
-nlohmann::json writePolygons(RunContext& ctx, const std::string& path,
-                             const Grid<std::int32_t>& values, const std::string& value_field,
-                             const std::string& observers) {
-    using K = VectorField::Kind;
-    const VectorLayerSpec spec{path,
-                               "visible_areas",
-                               ctx.dem.crs.wkt,
-                               {{value_field, K::Integer}, {"observers", K::Text}},
-                               "lookfar viewshed: areas seen from " + observers};
-    const AreaPolygons written = writeAreaPolygons(spec, values, ctx.dem.geometry, {observers});
-    ctx.outputs->adopt(written.temp, path);
-    return {{"path", path},
-            {"features", written.features},
-            {"cells", written.cells},
-            {"area_m2", written.area_m2}};
-}
-
 /// One observer: the engine, its rasters, its summary entry; returns the table.
 std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const PlacedSite& p,
                       const ViewshedOptions& opt, ViewshedRasters& rasters, nlohmann::json& j) {
@@ -217,7 +198,7 @@ std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const Place
     if (!st.polygons.empty())
         j["polygons"] = writePolygons(
             ctx, st.polygons, areaValues(grids.visible, [](std::uint8_t v) { return v == 1; }),
-            "visible", p.observer.name);
+            "visible", "lookfar viewshed: areas seen from " + p.observer.name, p.observer.name);
     grids.visible = Grid<std::uint8_t>();
     if (opt.want_margin) {
         rasters.write(st.margin, PixelType::Float32, nan, kMarginText, "m", grids.margin.data());
@@ -295,7 +276,7 @@ std::string runSites(RunContext& ctx, const ViewshedRunOptions& st,
         j["polygons"] = writePolygons(
             ctx, st.polygons,
             areaValues(res.count, [](std::uint16_t v) { return v >= 1 && v != kNoCount; }), "count",
-            names);
+            "lookfar viewshed: areas seen by the same number of sites", names);
     }
     res.count = Grid<std::uint16_t>();
     if (opt.want_margin) {

@@ -152,3 +152,26 @@ TEST(GisOutputsCliTest, PolygonsInAnUnknownFormatAreRefusedBeforeAnyWork) {
     EXPECT_NE(firstLine(r.err).find("--polygons"), std::string::npos) << r.err;
     EXPECT_TRUE(dir.entries().empty());
 }
+
+// Issue 15 items 1, 2: select writes the chosen sites' coverage as polygons (adding up to the
+// summary's area seen by any chosen site) and the chosen sites as points in the order chosen.
+TEST(GisOutputsCliTest, SelectWritesItsCoverageAndItsChosenSites) {
+    ScratchDir dir;
+    const CliResult r =
+        runLookfar({"select", kDemo, "--candidates", kSites, "--count", "3", "--reach", "8000",
+                    "-o", dir.file("s.tif"), "--polygons", dir.file("s.gpkg"), "--points",
+                    dir.file("p.gpkg"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto j = nlohmann::json::parse(r.out);
+    double area = 0;
+    for (const auto& f : readVectorFeatures(dir.file("s.gpkg")))
+        area += std::stod(f.fields.at("area_m2"));
+    const double any = j["coverage"]["area_seen_by_any_m2"].get<double>();
+    EXPECT_NEAR(area, any, 0.005 * any);
+    const auto points = readVectorFeatures(dir.file("p.gpkg"));
+    ASSERT_EQ(points.size(), 3u);
+    for (std::size_t i = 0; i < points.size(); ++i) {
+        EXPECT_EQ(points[i].fields.at("rank"), std::to_string(i + 1));
+        EXPECT_EQ(points[i].fields.at("name"), j["selected"][i]["name"].get<std::string>());
+    }
+}

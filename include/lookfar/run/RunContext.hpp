@@ -20,6 +20,7 @@
 #include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/RasterWriter.hpp"
 #include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/io/VectorOutput.hpp"
 #include "lookfar/report/Summary.hpp"
 #include "lookfar/run/Format.hpp"
 #include "lookfar/run/Options.hpp"
@@ -149,6 +150,14 @@ nlohmann::json extentJson(const RunContext& ctx);
 void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data);
 /// Writes a one-band grid over the window read (uint8_t, uint16_t or float) into its temporary
 /// file; finishRun() renames it with the run's other outputs.
+/// Writes the areas of `values` (cells ≥ 0; see writeAreaPolygons) as polygons to `path`
+/// (.gpkg or .geojson), with columns `value_field`, `observers` (`observers` in every feature),
+/// `cells` and `area_m2`; hands the file to the run's outputs and returns the summary's entry
+/// (path, features, cells, area_m2).
+nlohmann::json writePolygons(RunContext& ctx, const std::string& path,
+                             const Grid<std::int32_t>& values, const std::string& value_field,
+                             const std::string& description, const std::string& observers);
+
 /// A count layer (`max_count` > 0) carries countPalette(max_count).
 void writeGrid(const RunContext& ctx, const std::string& path, PixelType type, double nodata,
                const void* data, const std::string& description, const std::string& unit = "",

@@ -15,6 +15,8 @@ struct SelectRunOptions {
     std::string output;        ///< -o: the count raster
     std::string csv;           ///< ranked CSV, empty = not written
     std::string weight;        ///< weight raster on the DEM's grid, empty = ground area
+    std::string polygons;      ///< the chosen sites' coverage as polygons, empty = none
+    std::string points;        ///< the chosen sites as points, empty = none
 };
 
 class SelectRun final : public RunCommand {
