@@ -83,7 +83,7 @@ Command addRunCommand(CLI::App& root, std::shared_ptr<run::RunCommand> command) 
                 *d.given = app->get_option(d.flag())->count() > 0;
         }
         TerminalProgress progress(command->common().quiet);
-        const RunReport report = command->run({&progress, commandLine()});
+        const RunReport report = run::runCommand(*command, {&progress, commandLine()});
         printReport(report, command->common().json);
     };
     return {app, run};

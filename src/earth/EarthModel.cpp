@@ -15,7 +15,7 @@ EarthShape parseEarthShape(const std::string& text) {
         return EarthShape::Sphere;
     if (text == "flat")
         return EarthShape::Flat;
-    throw UsageError("--earth-model: '" + text + "' is not one of ellipsoid, sphere, flat");
+    throw InvalidOption("earth_model", "'" + text + "' is not one of ellipsoid, sphere, flat");
 }
 
 std::string toString(EarthShape shape) {
@@ -34,19 +34,21 @@ EarthModel::EarthModel(EarthShape shape, Ellipsoid ellipsoid, double sphere_radi
                        double refraction)
     : shape_(shape), ellipsoid_(ellipsoid), sphere_radius_m_(sphere_radius_m), k_(refraction) {
     if (!std::isfinite(refraction)) {
-        throw UsageError("--refraction: the refraction coefficient must be a finite number");
+        throw InvalidOption("refraction", "the refraction coefficient must be a finite number");
     }
     if (refraction >= 1.0) {
-        throw UsageError("--refraction: k = " + std::to_string(refraction) +
-                         " would bend sightlines at least as much as the Earth curves (ducting); "
-                         "lookfar needs k < 1");
+        throw InvalidOption(
+            "refraction",
+            "k = " + std::to_string(refraction) +
+                " would bend sightlines at least as much as the Earth curves (ducting); "
+                "lookfar needs k < 1");
     }
     if (refraction < -1.0) {
-        throw UsageError("--refraction: k = " + std::to_string(refraction) +
-                         " is outside the range −1 ≤ k < 1");
+        throw InvalidOption(
+            "refraction", "k = " + std::to_string(refraction) + " is outside the range −1 ≤ k < 1");
     }
     if (!(sphere_radius_m > 0) || !std::isfinite(sphere_radius_m)) {
-        throw UsageError("--earth-radius: the radius must be a positive number of metres");
+        throw InvalidOption("earth_radius_m", "the radius must be a positive number of metres");
     }
     if (!(ellipsoid.a > 0) || !(ellipsoid.f >= 0 && ellipsoid.f < 1)) {
         throw InputError("the CRS's ellipsoid has an invalid semi-major axis or flattening");

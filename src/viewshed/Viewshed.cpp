@@ -36,11 +36,11 @@ void validateViewshedInputs(const Grid<float>& dem, const Observer& observer,
                          number(observer.height_m) + " m) must be a finite number ≥ 0");
     }
     if (!(options.target_height_m >= 0) || !std::isfinite(options.target_height_m)) {
-        throw UsageError("--target-height: " + number(options.target_height_m) +
-                         " m must be a finite number ≥ 0");
+        throw InvalidOption("target_height_m",
+                            number(options.target_height_m) + " m must be a finite number ≥ 0");
     }
     if (!(options.reach_m > 0)) {
-        throw UsageError("--reach: " + number(options.reach_m) + " m must be a positive distance");
+        throw InvalidOption("reach_m", number(options.reach_m) + " m must be a positive distance");
     }
 }
 

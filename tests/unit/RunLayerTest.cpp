@@ -228,3 +228,30 @@ TEST(RunLayerTest, SelectNeedsACountOrACoverageGoal) {
     EXPECT_EQ(j["stop_reason"], "count");
     EXPECT_TRUE(fileExists(dir.file("count.tif")));
 }
+
+TEST(RunLayerTest, LibraryErrorsNameTheFieldAndTheRunNamesTheFlag) {
+    // The library knows fields, not flags.
+    try {
+        EarthModel(EarthShape::Sphere, Ellipsoid::wgs84(), EarthModel::kMeanRadiusM, 1.5);
+        FAIL() << "k = 1.5 was accepted";
+    } catch (const InvalidOption& e) {
+        EXPECT_EQ(e.field(), "refraction");
+        EXPECT_EQ(std::string(e.what()).rfind("refraction: k = 1.500000 would bend", 0), 0u);
+    }
+    EXPECT_EQ(run::flagOfField("target_height_m"), "--target-height");
+    EXPECT_EQ(run::flagOfField("earth_model"), "--earth-model");
+    // The run maps the field to the flag its command declares (a caller without CLI11 skips the
+    // parser's range check, so the library's check is the one that speaks).
+    run::LinkRun link;
+    link.options.common.dem = testRaster("flat_sea.tif");
+    link.options.common.refraction = 1.5;
+    link.options.from = "400025,5624975";
+    link.options.to = "450025,5624975";
+    try {
+        run::runCommand(link, {});
+        FAIL() << "k = 1.5 was accepted";
+    } catch (const UsageError& e) {
+        EXPECT_EQ(std::string(e.what()).rfind("--refraction: k = 1.500000 would bend", 0), 0u)
+            << e.what();
+    }
+}

@@ -30,6 +30,33 @@ class UsageError : public Error {
     int exitCode() const noexcept override { return kExitUsage; }
 };
 
+/// An option value the library refuses, named by the field of its options struct
+/// ("target_height_m"), not by a command-line flag: what() reads "target height: 3 m must be …".
+/// The run layer, which knows the flags, rethrows it as a UsageError naming the flag.
+class InvalidOption : public UsageError {
+  public:
+    InvalidOption(const std::string& field, const std::string& detail)
+        : UsageError(words(field) + ": " + detail), field_(field), detail_(detail) {}
+    /// The field, as in the options struct ("refraction", "target_height_m").
+    const std::string& field() const noexcept { return field_; }
+    /// The message after the field's name.
+    const std::string& detail() const noexcept { return detail_; }
+    /// "target_height_m" → "target height": underscores as spaces, a unit suffix dropped.
+    static std::string words(std::string field) {
+        for (const char* unit : {"_m", "_deg"}) {
+            const std::string u = unit;
+            if (field.size() > u.size() && field.compare(field.size() - u.size(), u.size(), u) == 0)
+                field.resize(field.size() - u.size());
+        }
+        for (char& c : field)
+            c = c == '_' ? ' ' : c;
+        return field;
+    }
+
+  private:
+    std::string field_, detail_;
+};
+
 /// Missing, unreadable or invalid input data: DEM, CSV rows, points outside the DEM (exit 3).
 class InputError : public Error {
   public:

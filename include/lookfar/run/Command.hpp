@@ -30,4 +30,12 @@ class RunCommand {
     virtual RunReport run(const RunEnv& env) = 0;
 };
 
+/// The flag of an options-struct field: "target_height_m" → "--target-height".
+std::string flagOfField(const std::string& field);
+
+/// Runs `command` as the CLI does: an InvalidOption from the library (which names the field of
+/// its options struct) becomes a UsageError naming the flag the command declares for it
+/// ("--target-height: …"); an undeclared field keeps the library's words.
+RunReport runCommand(RunCommand& command, const RunEnv& env);
+
 }  // namespace lookfar::run
