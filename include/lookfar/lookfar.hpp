@@ -36,6 +36,10 @@
 #include "lookfar/link/Intervisibility.hpp"
 #include "lookfar/link/PathProfile.hpp"
 
+// radio
+#include "lookfar/radio/Propagation.hpp"
+#include "lookfar/radio/Signal.hpp"
+
 // siting
 #include "lookfar/siting/CoverageSet.hpp"
 #include "lookfar/siting/GreedyCoverage.hpp"

@@ -25,6 +25,21 @@ SightlineRule::SightlineRule(const Grid<float>& dem, const GridGeometry& geometr
     curvature_ = earth.curvatureAt(observer.latitude_deg);
 }
 
+SightlineSamples SightlineRule::samples(int col, int row, double drop_m) const {
+    SightlineSamples s;
+    s.dem = dem_.data();
+    s.width = dem_.width();
+    s.c0 = observer_.col;
+    s.r0 = observer_.row;
+    s.col_off = geometry_.colOffset();
+    s.row_off = geometry_.rowOffset();
+    s.dc = col - observer_.col;
+    s.dr = row - observer_.row;
+    s.drop_m = drop_m;
+    s.eye_m = eye_m_;
+    return s;
+}
+
 SightlineVerdict SightlineRule::judge(int col, int row, double target_height_m) const {
     SightlineVerdict v;
     const int c0 = observer_.col, r0 = observer_.row;
@@ -48,17 +63,7 @@ SightlineVerdict SightlineRule::judge(int col, int row, double target_height_m) 
         return v;
     }
 
-    SightlineSamples samples;
-    samples.dem = dem_.data();
-    samples.width = dem_.width();
-    samples.c0 = c0;
-    samples.r0 = r0;
-    samples.col_off = geometry_.colOffset();
-    samples.row_off = geometry_.rowOffset();
-    samples.dc = col - c0;
-    samples.dr = row - r0;
-    samples.drop_m = drop;
-    samples.eye_m = eye_m_;
+    const SightlineSamples samples = this->samples(col, row, drop);
     double max_gain = -std::numeric_limits<double>::infinity();
     // Column lines, then row lines, strictly between O and C. A NaN gain (no-data) never
     // compares greater, so no-data never blocks.

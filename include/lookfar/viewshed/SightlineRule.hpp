@@ -23,6 +23,7 @@
 #include "lookfar/core/GridGeometry.hpp"
 #include "lookfar/earth/EarthModel.hpp"
 #include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/viewshed/SightlineSamples.hpp"
 
 namespace lookfar {
 
@@ -46,6 +47,10 @@ class SightlineRule {
     /// reports margin = target_height_m: the target could be lowered to the ground and still be
     /// seen.
     SightlineVerdict judge(int col, int row, double target_height_m) const;
+
+    /// The samples of the sightline to cell (col, row), with `drop_m` the drop at that cell
+    /// (Curvature::drop) for their gains; their heights and positions need no drop.
+    SightlineSamples samples(int col, int row, double drop_m) const;
 
     double eyeHeightM() const { return eye_m_; }
     const LocalFrame& frame() const { return frame_; }

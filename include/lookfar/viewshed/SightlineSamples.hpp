@@ -1,7 +1,8 @@
 #pragma once
 // The terrain samples of the sightline rule, as one small inline type shared by the reference
 // rule (SightlineRule) and the fast engine's exact re-checks, so both do the very same
-// arithmetic and reach bit-identical verdicts.
+// arithmetic and reach bit-identical verdicts; the radio engine builds its terrain profiles from
+// the same samples (columnHeight, rowHeight).
 //
 // Notation (see SightlineRule.hpp)
 //   (c0, r0)    observer cell;  (dc, dr) offset of the target cell C from it, cells
@@ -30,25 +31,40 @@ struct SightlineSamples {
     /// Gain (metres) of the sample where O→C crosses column line `col` (strictly between c0 and
     /// c0 + dc); NaN when the sample touches no-data.
     double columnGain(int col) const {
-        const double t = static_cast<double>(col - c0) / dc;
-        const double y = (r0 + row_off) + t * dr;
+        const double t = columnT(col);
+        return (columnHeight(col) - t * t * drop_m - eye_m) / t;
+    }
+
+    /// Position t ∈ (0, 1) along O→C of the sample on column line `col`.
+    double columnT(int col) const { return static_cast<double>(col - c0) / dc; }
+
+    /// Terrain height (metres, NaN on no-data) of the sample on column line `col`: the two
+    /// neighbouring cell centres of that column interpolated linearly.
+    double columnHeight(int col) const {
+        const double y = (r0 + row_off) + columnT(col) * dr;
         const int y_floor = static_cast<int>(std::floor(y));
         const double fy = y - y_floor;
         const int ya = y_floor - row_off;
-        const double zs = fy == 0.0 ? z(col, ya) : (1.0 - fy) * z(col, ya) + fy * z(col, ya + 1);
-        return (zs - t * t * drop_m - eye_m) / t;
+        return fy == 0.0 ? z(col, ya) : (1.0 - fy) * z(col, ya) + fy * z(col, ya + 1);
     }
 
     /// Gain (metres) of the sample where O→C crosses row line `row` (strictly between r0 and
     /// r0 + dr); NaN when the sample touches no-data.
     double rowGain(int row) const {
-        const double t = static_cast<double>(row - r0) / dr;
-        const double x = (c0 + col_off) + t * dc;
+        const double t = rowT(row);
+        return (rowHeight(row) - t * t * drop_m - eye_m) / t;
+    }
+
+    /// Position t ∈ (0, 1) along O→C of the sample on row line `row`.
+    double rowT(int row) const { return static_cast<double>(row - r0) / dr; }
+
+    /// Terrain height (metres, NaN on no-data) of the sample on row line `row`.
+    double rowHeight(int row) const {
+        const double x = (c0 + col_off) + rowT(row) * dc;
         const int x_floor = static_cast<int>(std::floor(x));
         const double fx = x - x_floor;
         const int xa = x_floor - col_off;
-        const double zs = fx == 0.0 ? z(xa, row) : (1.0 - fx) * z(xa, row) + fx * z(xa + 1, row);
-        return (zs - t * t * drop_m - eye_m) / t;
+        return fx == 0.0 ? z(xa, row) : (1.0 - fx) * z(xa, row) + fx * z(xa + 1, row);
     }
 };
 
