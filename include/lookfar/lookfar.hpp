@@ -70,4 +70,5 @@
 #include "lookfar/run/Options.hpp"
 #include "lookfar/run/RunContext.hpp"
 #include "lookfar/run/SelectRun.hpp"
+#include "lookfar/run/SignalRun.hpp"
 #include "lookfar/run/ViewshedRun.hpp"

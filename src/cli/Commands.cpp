@@ -10,6 +10,7 @@ std::vector<Command> allCommands(CLI::App& root) {
     all.push_back(addLinkCommand(root));
     all.push_back(addIntervisCommand(root));
     all.push_back(addSelectCommand(root));
+    all.push_back(addSignalCommand(root));
     return all;
 }
 

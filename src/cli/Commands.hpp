@@ -15,6 +15,7 @@ Command addHorizonCommand(CLI::App& root);
 Command addLinkCommand(CLI::App& root);
 Command addIntervisCommand(CLI::App& root);
 Command addSelectCommand(CLI::App& root);
+Command addSignalCommand(CLI::App& root);
 
 /// Every subcommand, in the order --help lists them.
 std::vector<Command> allCommands(CLI::App& root);

@@ -26,18 +26,6 @@ std::string writeText(const ScratchDir& dir, const std::string& name, const std:
     return path;
 }
 
-/// A command that must fail with `code`, its first line holding every `needles`, and nothing
-/// written into `out`.
-void expectRefused(const std::vector<std::string>& args, int code,
-                   const std::vector<std::string>& needles, const ScratchDir& out) {
-    const CliResult r = runLookfar(args);
-    EXPECT_EQ(r.exit_code, code) << r.err;
-    for (const auto& n : needles)
-        EXPECT_NE(firstLine(r.err).find(n), std::string::npos) << "no '" << n << "' in " << r.err;
-    EXPECT_EQ(r.err.find("internal error"), std::string::npos) << r.err;
-    EXPECT_TRUE(out.entries().empty()) << "left behind: " << out.entries().front();
-}
-
 }  // namespace
 
 // ----- item 1: text is UTF-8 -----------------------------------------------------------------

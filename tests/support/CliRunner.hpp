@@ -1,5 +1,7 @@
 #pragma once
 // Runs the built lookfar binary for CLI tests and captures its exit code, stdout and stderr.
+#include <gtest/gtest.h>
+
 #include <sys/stat.h>
 #include <sys/wait.h>
 #include <unistd.h>
@@ -108,6 +110,18 @@ inline CliResult runLookfar(const std::vector<std::string>& args) {
 /// First line of a text.
 inline std::string firstLine(const std::string& s) {
     return s.substr(0, s.find('\n'));
+}
+
+/// A command that must fail with `code`, the first line of its stderr holding every `needles`,
+/// no internal error, and nothing written into `out`.
+inline void expectRefused(const std::vector<std::string>& args, int code,
+                          const std::vector<std::string>& needles, const ScratchDir& out) {
+    const CliResult r = runLookfar(args);
+    EXPECT_EQ(r.exit_code, code) << r.err;
+    for (const auto& n : needles)
+        EXPECT_NE(firstLine(r.err).find(n), std::string::npos) << "no '" << n << "' in " << r.err;
+    EXPECT_EQ(r.err.find("internal error"), std::string::npos) << r.err;
+    EXPECT_TRUE(out.entries().empty()) << "left behind: " << out.entries().front();
 }
 
 }  // namespace lookfar::testing

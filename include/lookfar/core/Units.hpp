@@ -11,6 +11,8 @@ inline constexpr double kMetresPerUsSurveyFoot = 1200.0 / 3937.0;  // US survey 
 inline constexpr double kPi = 3.14159265358979323846;
 inline constexpr double kDegToRad = kPi / 180.0;
 inline constexpr double kRadToDeg = 180.0 / kPi;
+/// Speed of light in vacuum, m/s (SI, exact): wavelengths for the link and radio layers.
+inline constexpr double kSpeedOfLightMps = 299792458.0;
 
 /// A linear unit: its name as lookfar prints it and its length in metres.
 struct LinearUnit {

@@ -27,12 +27,10 @@
 #include <vector>
 
 #include "lookfar/core/Grid.hpp"
+#include "lookfar/core/Units.hpp"
 #include "lookfar/earth/EarthModel.hpp"
 
 namespace lookfar {
-
-/// Speed of light in vacuum, m/s (SI, exact).
-inline constexpr double kSpeedOfLightMps = 299792458.0;
 
 /// First Fresnel zone radius at distances d1, d2 (metres, ≥ 0) from the two ends of a path,
 /// for a frequency in MHz (> 0): √(λ d1 d2 / (d1 + d2)), metres; 0 at either end.

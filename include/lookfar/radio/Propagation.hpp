@@ -24,14 +24,14 @@
 #include <string>
 #include <vector>
 
+#include "lookfar/core/Units.hpp"
+
 namespace lookfar {
 
 /// The frequency range the methods are used over here (P.526 §3.2 holds from 10 MHz; the
 /// Bullington construction is used up to 50 GHz by P.1812 and P.452), MHz.
 inline constexpr double kMinFrequencyMhz = 30.0;
 inline constexpr double kMaxFrequencyMhz = 50000.0;
-/// Speed of light in vacuum, m/s (exact).
-inline constexpr double kSpeedOfLightMps = 299792458.0;
 
 enum class Polarization { Vertical, Horizontal };
 

@@ -1,0 +1,389 @@
+// lookfar signal: one transmitter's basic transmission loss at every cell, with the received
+// level, the served area and the Fresnel clearance (SignalRun.hpp). The loss is lookfar/radio's
+// reference engine; this file places the transmitter, writes the rasters and the summary.
+#include "lookfar/run/SignalRun.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstdint>
+#include <limits>
+#include <string>
+#include <vector>
+
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Units.hpp"
+#include "lookfar/radio/Signal.hpp"
+#include "lookfar/report/TextTable.hpp"
+
+namespace lookfar::run {
+
+namespace {
+
+constexpr std::uint8_t kServed = 1, kNotServed = 0, kNoServed = 255;
+
+/// An antenna height: a length above the ground, > 0 (exit 2 otherwise).
+double antennaHeight(const std::string& text, const std::string& what) {
+    const double h = parseLengthMetres(text, what);
+    if (!(h > 0) || h > kMaxHeightAboveGroundM) {
+        throw UsageError(what + ": " + fmtg(h) + " m is not an antenna height above the ground " +
+                         "(more than 0, at most " + kMaxHeightAboveGroundText + ")");
+    }
+    return h;
+}
+
+/// Band edges of the summary: received level (dBm, from the strongest) or loss (dB).
+const std::array<double, 6> kLevelEdgesDbm = {-60, -70, -80, -90, -100, -110};
+const std::array<double, 6> kLossEdgesDb = {80, 100, 120, 140, 160, 180};
+
+std::string bandLabel(const std::array<double, 6>& edges, std::size_t b, bool level) {
+    const std::string unit = level ? " dBm" : " dB";
+    auto num = [](double v) { return printfNumber("%g", v); };
+    if (b == 0)
+        return (level ? ">= " : "< ") + num(edges[0]) + unit;
+    if (b == edges.size())
+        return (level ? "< " : ">= ") + num(edges.back()) + unit;
+    return level ? num(edges[b]) + " to " + num(edges[b - 1]) + unit
+                 : num(edges[b - 1]) + " to " + num(edges[b]) + unit;
+}
+
+/// Band of a value: 0 the best (strongest level, least loss), edges.size() the worst.
+std::size_t bandOf(const std::array<double, 6>& edges, double v, bool level) {
+    std::size_t b = 0;
+    while (b < edges.size() && (level ? v < edges[b] : v >= edges[b]))
+        ++b;
+    return b;
+}
+
+/// 1 where `level` reaches `min_level_dbm`, 0 below, kNoServed where it has no value.
+std::vector<std::uint8_t> servedCells(const Grid<float>& level, double min_level_dbm) {
+    std::vector<std::uint8_t> out;
+    out.reserve(level.size());
+    for (std::size_t i = 0; i < level.size(); ++i) {
+        const float v = level.data()[i];
+        out.push_back(std::isnan(v) ? kNoServed : v >= min_level_dbm ? kServed : kNotServed);
+    }
+    return out;
+}
+
+struct SignalStats {
+    std::int64_t evaluated_cells = 0;
+    double evaluated_area_m2 = 0;
+    std::int64_t served_cells = 0;
+    double served_area_m2 = 0;
+    double min_loss_db = std::numeric_limits<double>::infinity();
+    double max_loss_db = -std::numeric_limits<double>::infinity();
+    double median_loss_db = std::numeric_limits<double>::quiet_NaN();
+    std::array<double, 7> band_area_m2{};
+};
+
+SignalStats summarize(const Grid<float>& loss, const GridGeometry& g, const SignalRunOptions& s) {
+    SignalStats st;
+    std::vector<float> values;
+    const bool level = s.eirp_given;
+    const auto& edges = level ? kLevelEdgesDbm : kLossEdgesDb;
+    for (int r = 0; r < loss.height(); ++r) {
+        const double area = g.cellAreaM2(r);
+        for (int c = 0; c < loss.width(); ++c) {
+            const float l = loss(c, r);
+            if (std::isnan(l))
+                continue;
+            ++st.evaluated_cells;
+            st.evaluated_area_m2 += area;
+            values.push_back(l);
+            st.min_loss_db = std::min<double>(st.min_loss_db, l);
+            st.max_loss_db = std::max<double>(st.max_loss_db, l);
+            const double v = level ? s.eirp_dbm + s.rx_gain_dbi - l : l;
+            st.band_area_m2[bandOf(edges, v, level)] += area;
+            if (level && s.min_level_given && v >= s.min_level_dbm) {
+                ++st.served_cells;
+                st.served_area_m2 += area;
+            }
+        }
+    }
+    if (!values.empty()) {
+        const std::size_t mid = values.size() / 2;
+        std::nth_element(values.begin(), values.begin() + mid, values.end());
+        st.median_loss_db = values[mid];
+    }
+    return st;
+}
+
+}  // namespace
+
+CommandHelp SignalRun::help() const {
+    return {"signal",
+            "basic transmission loss from a transmitter to every cell (ITU-R free space + "
+            "delta-Bullington diffraction), with received level, served area and Fresnel "
+            "clearance",
+            "\nMethod: free-space loss (ITU-R P.525) over the slant distance plus diffraction by "
+            "the\n  delta-Bullington method of ITU-R P.526-15 4.5: Bullington's construction over "
+            "the\n  terrain, plus the spherical-Earth loss (P.526 3.2) of the smooth-Earth "
+            "effective\n  heights, minus Bullington over that smooth profile, when positive. The "
+            "profile to a\n  cell is the sightline rule's terrain samples; antennas stand above "
+            "the ground of the\n  two cells. No clutter, atmospheric absorption, tropospheric "
+            "scatter or time\n  variability: a median, clear-air prediction. One engine "
+            "(reference): every cell's\n  profile on its own, O(distance) per cell; the same "
+            "result for any --threads.\nSummary: evaluated area, least, median and greatest loss, "
+            "the area by loss band (or by\n  received level band with --eirp-dbm) and the served "
+            "area with --min-level-dbm.\nCaution: signal layers are median predictions for "
+            "planning, not licensed coverage.\n  DEMs omit buildings and vegetation; where a "
+            "regulator prescribes its own method,\n  that method and licensed radio engineering "
+            "prevail.\n"};
+}
+
+OptionTable SignalRun::declare() {
+    SignalRunOptions& s = options;
+    OptionTable t = commonOptions(s.common, kGeometryOptions | kOutputOptions);
+    findOption(t, "--refraction").help =
+        "refraction coefficient k, -1 <= k < 1; 0.25 (the 4/3 Earth of radio) for this command";
+    t.push_back(OptionDecl("--tx", &s.tx,
+                           "transmitter position X,Y in --crs (the antenna stands on the centre "
+                           "of the cell that holds it)",
+                           "Transmitter")
+                    .mandatory());
+    t.push_back(
+        OptionDecl("--name", &s.name, "name of the transmitter in the summary", "Transmitter")
+            .showDefault());
+    t.push_back(OptionDecl("--tx-height", &s.tx_height,
+                           "transmitting antenna above the ground, metres (> 0; suffix m, ft, "
+                           "us-ft)",
+                           "Transmitter")
+                    .showDefault());
+    t.push_back(OptionDecl("--rx-height", &s.rx_height,
+                           "receiving antenna above the ground of each cell, metres (> 0)",
+                           "Receiver")
+                    .showDefault());
+    t.push_back(OptionDecl("--frequency-mhz", &s.frequency_mhz,
+                           "frequency, MHz, 30 to 50000 (where the method applies); required",
+                           "Radio")
+                    .inUnit("MHz")
+                    .checkedBy(decimalCheck(kMinFrequencyMhz, kMaxFrequencyMhz, "MHz"))
+                    .noteGiven(&s.frequency_given));
+    t.push_back(OptionDecl("--ground-permittivity", &s.ground_permittivity,
+                           "relative permittivity of the ground, 1 to 100 (land 22, sea 80)",
+                           "Radio")
+                    .showDefault()
+                    .checkedBy(decimalCheck(1, 100, "")));
+    t.push_back(OptionDecl("--ground-conductivity", &s.ground_conductivity,
+                           "conductivity of the ground, S/m, 0 to 100 (land 0.003, sea 5)", "Radio")
+                    .inUnit("S/m")
+                    .showDefault()
+                    .checkedBy(decimalCheck(0, 100, "S/m")));
+    t.push_back(OptionDecl("--polarization", &s.polarization, "vertical or horizontal", "Radio")
+                    .showDefault()
+                    .checkedBy(oneOfCheck({"vertical", "horizontal"})));
+    t.push_back(OptionDecl("--eirp-dbm", &s.eirp_dbm,
+                           "effective isotropic radiated power, dBm (-100 to 200), for --level "
+                           "and --served",
+                           "Radio")
+                    .inUnit("dBm")
+                    .checkedBy(decimalCheck(-100, 200, "dBm"))
+                    .noteGiven(&s.eirp_given));
+    t.push_back(OptionDecl("--rx-gain-dbi", &s.rx_gain_dbi,
+                           "receiving antenna gain, dBi (-50 to 100)", "Radio")
+                    .inUnit("dBi")
+                    .showDefault()
+                    .checkedBy(decimalCheck(-50, 100, "dBi")));
+    t.push_back(OptionDecl("--min-level-dbm", &s.min_level_dbm,
+                           "received level that serves a cell, dBm (-300 to 100; needs "
+                           "--eirp-dbm)",
+                           "Radio")
+                    .inUnit("dBm")
+                    .checkedBy(decimalCheck(-300, 100, "dBm"))
+                    .noteGiven(&s.min_level_given));
+    t.push_back(OptionDecl("-o,--output", &s.output,
+                           "Float32 raster of the basic transmission loss, dB (NaN no data)",
+                           "Output")
+                    .fileType()
+                    .mandatory());
+    t.push_back(OptionDecl("--level", &s.level,
+                           "Float32 raster of the received level, dBm: EIRP + receiver gain - "
+                           "loss",
+                           "Output")
+                    .fileType());
+    t.push_back(OptionDecl("--served", &s.served,
+                           "Byte raster: 1 where the level reaches --min-level-dbm, 0 below, "
+                           "255 no data",
+                           "Output")
+                    .fileType());
+    t.push_back(OptionDecl("--fresnel", &s.fresnel,
+                           "Float32 raster of the worst clearance over the path in first Fresnel "
+                           "zone radii (negative when blocked; 0.6 the usual fixed-link "
+                           "criterion)",
+                           "Output")
+                    .fileType());
+    return t;
+}
+
+RunReport SignalRun::run(const RunEnv& env) {
+    const SignalRunOptions& s = options;
+    // Every check of the options first (exit 2), before any file is touched.
+    if (!s.frequency_given)
+        throw UsageError("--frequency-mhz is required (30 to 50000 MHz)");
+    if (s.min_level_given && !s.eirp_given)
+        throw UsageError("--min-level-dbm needs --eirp-dbm: a level needs the transmitted power");
+    if (!s.level.empty() && !s.eirp_given)
+        throw UsageError("--level needs --eirp-dbm: a level needs the transmitted power");
+    if (!s.served.empty() && !s.min_level_given)
+        throw UsageError("--served needs --min-level-dbm (and --eirp-dbm): the level that serves");
+    const double tx_h = antennaHeight(s.tx_height, "--tx-height");
+    const double rx_h = antennaHeight(s.rx_height, "--rx-height");
+    SignalOptions opt;
+    opt.radio.frequency_mhz = s.frequency_mhz;
+    opt.radio.ground_permittivity = s.ground_permittivity;
+    opt.radio.ground_conductivity_s_m = s.ground_conductivity;
+    opt.radio.polarization = parsePolarization(s.polarization);
+    validateRadioParams(opt.radio);
+    opt.rx_height_m = rx_h;
+    opt.want_fresnel = !s.fresnel.empty();
+    const MapPoint given = parsePoint(s.tx, "--tx");
+
+    const std::vector<NamedPath> outputs = {
+        {"-o", s.output}, {"--level", s.level}, {"--served", s.served}, {"--fresnel", s.fresnel}};
+    RunContext ctx = prepareRun(env, "signal", s.common, outputs, {}, DemCells::Later);
+    const Observer tx = placeObserver(ctx, "--tx", given.x, given.y, tx_h, s.name);
+    readDemWindow(ctx, workWindow(ctx, {tx}));
+    requireData(ctx, "--tx", given, tx);
+    const double ground = groundAt(ctx, tx.col, tx.row);
+    const GridGeometry& g = ctx.dem.geometry;
+    opt.reach_m = ctx.reach_m;
+
+    RunDescription& run = ctx.run;
+    run.observer_height_m = tx_h;
+    run.target_height_m = rx_h;
+    run.method = "reference";
+    run.extra["COORDINATE_CRS"] = s.common.crs.empty() ? "the DEM's" : s.common.crs;
+    run.extra["TRANSMITTER"] = tx.name;
+    run.extra["TRANSMITTER_XY"] = fmtg(given.x) + "," + fmtg(given.y);
+    run.extra["TRANSMITTER_CELL"] = std::to_string(tx.col) + "," + std::to_string(tx.row);
+    run.extra["TRANSMITTER_GROUND_M"] = printfNumber("%.3f", ground);
+    run.extra["TX_HEIGHT_M"] = fmtg(tx_h);
+    run.extra["RX_HEIGHT_M"] = fmtg(rx_h);
+    run.extra["FREQUENCY_MHZ"] = fmtg(s.frequency_mhz);
+    run.extra["GROUND_PERMITTIVITY"] = fmtg(s.ground_permittivity);
+    run.extra["GROUND_CONDUCTIVITY_S_M"] = fmtg(s.ground_conductivity);
+    run.extra["POLARIZATION"] = toString(opt.radio.polarization);
+    run.extra["PROPAGATION_METHOD"] =
+        "ITU-R P.525 free space over the slant distance + ITU-R P.526-15 4.5 delta-Bullington";
+    if (s.eirp_given)
+        run.extra["EIRP_DBM"] = fmtg(s.eirp_dbm);
+    run.extra["RX_GAIN_DBI"] = fmtg(s.rx_gain_dbi);
+    if (s.min_level_given)
+        run.extra["MIN_LEVEL_DBM"] = fmtg(s.min_level_dbm);
+
+    const Observer tx_in = inWindow(ctx, tx);
+    SignalGrids grids = referenceSignal(ctx.dem.z, g, ctx.earth, tx_in, opt, *ctx.progress);
+    ctx.dem.z = Grid<float>();  // the elevations are no longer needed
+    const SignalStats st = summarize(grids.loss_db, g, s);
+
+    const float nan = std::numeric_limits<float>::quiet_NaN();
+    const std::string freq = fmtg(s.frequency_mhz) + " MHz";
+    writeGrid(ctx, s.output, PixelType::Float32, nan, grids.loss_db.data(),
+              "basic transmission loss from " + tx.name + " at " + freq +
+                  ", dB (median prediction; NaN no data or beyond reach)",
+              "dB");
+    if (s.eirp_given && (!s.level.empty() || !s.served.empty())) {
+        const double budget = s.eirp_dbm + s.rx_gain_dbi;
+        Grid<float> level(grids.loss_db.width(), grids.loss_db.height(), nan);
+        for (std::size_t i = 0; i < level.size(); ++i)
+            level.data()[i] = static_cast<float>(budget - grids.loss_db.data()[i]);
+        if (!s.served.empty()) {
+            const std::vector<std::uint8_t> served = servedCells(level, s.min_level_dbm);
+            writeGrid(ctx, s.served, PixelType::Byte, kNoServed, served.data(),
+                      "served by " + tx.name + ": 1 level >= " + fmtg(s.min_level_dbm) +
+                          " dBm, 0 below, 255 no data or beyond reach");
+        }
+        if (!s.level.empty()) {
+            writeGrid(ctx, s.level, PixelType::Float32, nan, level.data(),
+                      "received level from " + tx.name + ", dBm (EIRP " + fmtg(s.eirp_dbm) +
+                          " dBm, receiver gain " + fmtg(s.rx_gain_dbi) + " dBi, median prediction)",
+                      "dBm");
+        }
+    }
+    if (opt.want_fresnel) {
+        writeGrid(ctx, s.fresnel, PixelType::Float32, nan, grids.fresnel.data(),
+                  "worst clearance of the path in first Fresnel zone radii at " + freq +
+                      " (negative: blocked; 0.6 the usual fixed-link criterion; NaN no terrain "
+                      "between, no data or beyond reach)");
+    }
+
+    nlohmann::json j = summaryBase(run);
+    j["outputs"] = {{"loss", s.output}};
+    if (!s.level.empty())
+        j["outputs"]["level"] = s.level;
+    if (!s.served.empty())
+        j["outputs"]["served"] = s.served;
+    if (!s.fresnel.empty())
+        j["outputs"]["fresnel"] = s.fresnel;
+    const double eff_radius = ctx.earth.shape() == EarthShape::Flat
+                                  ? std::numeric_limits<double>::infinity()
+                                  : run.earth_radius_m / (1.0 - run.refraction);
+    j["transmitter"] = {
+        {"name", tx.name}, {"x", given.x},       {"y", given.y},     {"col", tx.col},
+        {"row", tx.row},   {"ground_m", ground}, {"height_m", tx_h}, {"antenna_m", ground + tx_h}};
+    j["radio"] = {
+        {"frequency_mhz", s.frequency_mhz},
+        {"rx_height_m", rx_h},
+        {"ground_permittivity", s.ground_permittivity},
+        {"ground_conductivity_s_m", s.ground_conductivity},
+        {"polarization", toString(opt.radio.polarization)},
+        {"effective_earth_radius_m", finiteOrNull(eff_radius)},
+        {"eirp_dbm", s.eirp_given ? nlohmann::json(s.eirp_dbm) : nlohmann::json()},
+        {"rx_gain_dbi", s.rx_gain_dbi},
+        {"min_level_dbm", s.min_level_given ? nlohmann::json(s.min_level_dbm) : nlohmann::json()},
+        {"method", "ITU-R P.525 + ITU-R P.526-15 4.5 delta-Bullington (reference)"}};
+    const bool level = s.eirp_given;
+    const auto& edges = level ? kLevelEdgesDbm : kLossEdgesDb;
+    nlohmann::json bands = nlohmann::json::object();
+    for (std::size_t b = 0; b <= edges.size(); ++b)
+        bands[bandLabel(edges, b, level)] = st.band_area_m2[b];
+    j["coverage"] = {{"evaluated_cells", st.evaluated_cells},
+                     {"evaluated_area_m2", st.evaluated_area_m2},
+                     {"min_loss_db", finiteOrNull(st.min_loss_db)},
+                     {"median_loss_db", finiteOrNull(st.median_loss_db)},
+                     {"max_loss_db", finiteOrNull(st.max_loss_db)},
+                     {level ? "area_by_level_m2" : "area_by_loss_m2", bands}};
+    if (s.min_level_given) {
+        j["coverage"]["served_cells"] = st.served_cells;
+        j["coverage"]["served_area_m2"] = st.served_area_m2;
+        j["coverage"]["served_fraction"] =
+            st.evaluated_area_m2 > 0 ? st.served_area_m2 / st.evaluated_area_m2 : 0.0;
+    }
+
+    TextTable t("Signal from " + tx.name + " on " + ctx.dem.path);
+    t.add("transmitter", fmtg(given.x) + ", " + fmtg(given.y) + " (cell " + std::to_string(tx.col) +
+                             ", " + std::to_string(tx.row) + "), " + formatNumber(tx_h, 1) +
+                             " m above " + formatNumber(ground, 1) + " m ground");
+    t.add("receiver", formatNumber(rx_h, 2) + " m above the ground of each cell");
+    t.add("radio", freq + ", " + toString(opt.radio.polarization) + ", ground eps_r " +
+                       fmtg(s.ground_permittivity) + ", sigma " + fmtg(s.ground_conductivity) +
+                       " S/m");
+    t.add(
+        "earth",
+        run.earth_model + ", refraction k = " + fmtg(run.refraction) +
+            (std::isfinite(eff_radius) ? ", effective radius " + formatDistance(eff_radius) : ""));
+    t.add("reach", std::isfinite(ctx.reach_m) ? formatDistance(ctx.reach_m) : "unlimited");
+    t.add("evaluated", formatArea(st.evaluated_area_m2) + " (" +
+                           formatNumber(static_cast<double>(st.evaluated_cells), 0) + " cells)");
+    t.add("loss", "min " + formatNumber(st.min_loss_db, 1) + " dB, median " +
+                      formatNumber(st.median_loss_db, 1) + " dB, max " +
+                      formatNumber(st.max_loss_db, 1) + " dB");
+    if (s.min_level_given) {
+        t.add("served", formatArea(st.served_area_m2) + " where the level reaches " +
+                            fmtg(s.min_level_dbm) + " dBm (EIRP " + fmtg(s.eirp_dbm) +
+                            " dBm, receiver gain " + fmtg(s.rx_gain_dbi) + " dBi)");
+    }
+    TextTable b(level ? "Area by received level" : "Area by basic transmission loss");
+    b.setHeader({level ? "level" : "loss", "area", "share of the evaluated area"});
+    for (std::size_t k = 0; k <= edges.size(); ++k) {
+        const double a = st.band_area_m2[k];
+        b.addRow({bandLabel(edges, k, level), formatArea(a),
+                  st.evaluated_area_m2 > 0
+                      ? formatNumber(100.0 * a / st.evaluated_area_m2, 2) + " %"
+                      : "-"});
+    }
+    return finishRun(ctx, j, t.render() + "\n" + b.render() + "\n");
+}
+
+}  // namespace lookfar::run
