@@ -82,6 +82,34 @@ std::vector<CommandCase> everyCommand() {
           "@c.tif", "--csv", "@r.csv", "--summary", "@s.json"},
          {{"c.tif", Output::Raster}, {"r.csv", Output::Text}, {"s.json", Output::Summary}}},
         {"info", {"info", kDemo, "--summary", "@s.json"}, {{"s.json", Output::Summary}}},
+        {"signal",
+         {"signal",
+          kDemo,
+          "--tx",
+          "425087.5,5597212.5",
+          "--frequency-mhz",
+          "450",
+          "--reach",
+          "2500",
+          "--eirp-dbm",
+          "40",
+          "--min-level-dbm",
+          "-85",
+          "-o",
+          "@loss.tif",
+          "--level",
+          "@level.tif",
+          "--served",
+          "@served.tif",
+          "--fresnel",
+          "@f.tif",
+          "--summary",
+          "@s.json"},
+         {{"loss.tif", Output::Raster},
+          {"level.tif", Output::Raster},
+          {"served.tif", Output::Raster},
+          {"f.tif", Output::Raster},
+          {"s.json", Output::Summary}}},
     };
 }
 
@@ -225,10 +253,13 @@ std::vector<std::vector<std::string>> longRuns(const std::string& dem, const std
         {"select", dem, "--candidates", stations, "--count", "3", "--method", "reference", "-o",
          out.file("c.tif"), "--csv", out.file("r.csv"), "--summary", out.file("s.json")},
         {"info", mosaic, "--summary", out.file("s.json")},
+        {"signal", dem, "--tx", "406000,5594000", "--frequency-mhz", "450", "--reach", "6000",
+         "--eirp-dbm", "40", "-o", out.file("loss.tif"), "--level", out.file("level.tif"),
+         "--fresnel", out.file("f.tif"), "--summary", out.file("s.json")},
     };
 }
-const char* const kRunNames[] = {"viewshed", "horizon_grid", "horizon_at",
-                                 "intervis", "select",       "info"};
+const char* const kRunNames[] = {"viewshed", "horizon_grid", "horizon_at", "intervis",
+                                 "select",   "info",         "signal"};
 
 TEST_P(InterruptEveryCommandTest, LeavesNoFileBehind) {
     const int run = std::get<0>(GetParam()), sig = std::get<1>(GetParam());
@@ -273,7 +304,7 @@ TEST_P(InterruptEveryCommandTest, LeavesNoFileBehind) {
 }
 
 INSTANTIATE_TEST_SUITE_P(EveryCommand, InterruptEveryCommandTest,
-                         ::testing::Combine(::testing::Range(0, 6),
+                         ::testing::Combine(::testing::Range(0, 7),
                                             ::testing::Values(SIGINT, SIGTERM, SIGHUP)),
                          [](const ::testing::TestParamInfo<std::tuple<int, int>>& p) {
                              const int sig = std::get<1>(p.param);
