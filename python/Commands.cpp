@@ -1,0 +1,352 @@
+#include "Commands.hpp"
+
+#include <pybind11/eval.h>
+
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "Args.hpp"
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/earth/EarthModel.hpp"
+#include "lookfar/run/IntervisRun.hpp"
+#include "lookfar/run/LinkRun.hpp"
+#include "lookfar/run/SelectRun.hpp"
+#include "lookfar/run/SignalRun.hpp"
+
+namespace lookfar::python {
+
+namespace {
+
+/// What lookfar.link, intervis, select and signal return: attributes set per function.
+struct Result {};
+
+/// How an output is handed back.
+enum class Kind {
+    Raster,   ///< a numpy array of the raster's type
+    Columns,  ///< a CSV as a dict of columns (numbers as numpy arrays, text as lists)
+    File,     ///< written only where the caller asks (SVG, GeoJSON …): no attribute
+};
+
+/// One output of a function: the attribute of the result, the command's option, the file name in
+/// the temporary folder, and what the caller gave (a path, True, or False/None).
+struct Output {
+    Output(std::string attr_, std::string flag_, std::string file_, Kind kind_, py::object value_,
+           bool always_ = false)
+        : attr(std::move(attr_)),
+          flag(std::move(flag_)),
+          file(std::move(file_)),
+          kind(kind_),
+          value(std::move(value_)),
+          always(always_) {}
+    std::string attr, flag, file;
+    Kind kind;
+    py::object value;
+    bool always;       ///< made even when not asked for (the command's main output)
+    std::string path;  ///< where the run writes it, "" for none
+};
+
+/// A function's run: the DEM, the command's options being set, and its outputs.
+class Call {
+  public:
+    Call(run::RunCommand& command, const py::object& dem)
+        : command_(command), dem_(demArgument(dem)), set_(command, dem_->runPath()) {}
+    OptionSetter& set() { return set_; }
+    const TempFolder& temp() const { return temp_; }
+    const PyDem& dem() const { return *dem_; }
+    void add(Output out) { outputs_.push_back(std::move(out)); }
+
+    /// Sets the outputs, runs, and reads every output back into a Result.
+    py::object run(bool overwrite, const py::object& progress) {
+        for (Output& o : outputs_) {
+            OutputChoice c = outputChoice(o.value, temp_, o.file);
+            if (c.path.empty() && o.always)
+                c = {temp_.file(o.file), false};
+            if (o.kind == Kind::File && !c.path.empty() && !c.keep)
+                throw UsageError(o.attr + ": give a path for this file (it has no array)");
+            o.path = c.path;
+            if (!c.path.empty())
+                set_.output(o.flag, c.path, c.keep);
+        }
+        if (overwrite)
+            set_.flag("--overwrite");
+        const run::RunReport report = runCommandReleased(command_, set_.commandLine(), progress);
+        py::object r = py::cast(Result());
+        const py::object columns = py::module_::import("lookfar").attr("_csv_columns");
+        for (const Output& o : outputs_) {
+            if (o.kind == Kind::File)
+                continue;
+            py::object value = py::none();
+            if (!o.path.empty())
+                value = o.kind == Kind::Raster ? readRasterArray(o.path) : columns(o.path);
+            r.attr(o.attr.c_str()) = value;
+        }
+        r.attr("summary") = summaryOf(report.summary, temp_, *dem_);
+        r.attr("table") = report.table;
+        return r;
+    }
+
+  private:
+    run::RunCommand& command_;
+    std::shared_ptr<PyDem> dem_;
+    TempFolder temp_;
+    OptionSetter set_;
+    std::vector<Output> outputs_;
+};
+
+/// The Python side of _csv_columns: a CSV as {column: values}, numbers as numpy arrays (an empty
+/// field is NaN), anything else as a list of str.
+const char* const kCsvColumns = R"(
+def _csv_columns(path):
+    import csv
+    import numpy
+    with open(path, newline="", encoding="utf-8") as f:
+        rows = list(csv.reader(f))
+    header, body = rows[0], rows[1:]
+    columns = {}
+    for i, name in enumerate(header):
+        values = [row[i] if i < len(row) else "" for row in body]
+        try:
+            columns[name] = numpy.array([int(v) for v in values], dtype=numpy.int64)
+            continue
+        except ValueError:
+            pass
+        try:
+            columns[name] = numpy.array([float(v) if v != "" else numpy.nan for v in values])
+        except ValueError:
+            columns[name] = values
+    return columns
+)";
+
+const char* const kGeometryDoc = R"(
+    reach: farthest distance considered, metres; None (the default) is unlimited.
+    refraction: refraction coefficient k, -1 <= k < 1.
+    earth_model: "ellipsoid" (default), "sphere" (earth_radius) or "flat".
+    earth_radius: radius of the sphere, metres; default 6371008.8; only with "sphere".
+    crs: CRS of the coordinates given (anything PROJ reads); None (the default) is the DEM's.
+    threads: worker threads; None (the default) uses every core.
+    overwrite: replace existing output files (else OutputError).
+    progress: None, or a callable progress(fraction) called on the calling thread with the
+        fraction done (0 to 1, never decreasing).
+
+Raises UsageError (bad values), InputError (DEM, points, CSV rows), OutputError (outputs),
+KeyboardInterrupt (Ctrl-C: nothing written).)";
+
+py::arg_v earthRadiusArg() {
+    return py::arg("earth_radius") = EarthModel::kMeanRadiusM;
+}
+
+}  // namespace
+
+void registerCommands(py::module_& m) {
+    py::exec(kCsvColumns, m.attr("__dict__"));
+    py::class_<Result>(m, "Result", py::dynamic_attr(),
+                       "What lookfar.link, intervis, select and signal return: arrays (or CSV "
+                       "columns), .summary (the CLI's summary JSON as a dict) and .table.")
+        .def("__repr__", [](const py::object& self) {
+            std::string names;
+            for (const auto& item : self.attr("__dict__").cast<py::dict>())
+                names += (names.empty() ? "" : ", ") + item.first.cast<std::string>();
+            return "<lookfar.Result: " + names + ">";
+        });
+
+    m.def(
+        "link",
+        [](const py::object& dem, const py::object& from_, const py::object& to,
+           const py::object& from_height, const py::object& to_height,
+           const py::object& frequency_mhz, const py::object& refraction,
+           const py::object& earth_model, const py::object& earth_radius, const py::object& crs,
+           const py::object& threads, const py::object& csv, const py::object& plot, bool overwrite,
+           const py::object& progress) {
+            run::LinkRun command;
+            Call call(command, dem);
+            const CommonArgs common{py::none(),   py::none(), py::none(), refraction, earth_model,
+                                    earth_radius, crs,        py::none(), threads};
+            setCommon(call.set(), call.dem(), common);
+            call.set().set("--from", pointText(from_, "--from"));
+            call.set().set("--to", pointText(to, "--to"));
+            call.set().set("--from-height", from_height);
+            call.set().set("--to-height", to_height);
+            call.set().set("--frequency-mhz", frequency_mhz);
+            call.add(Output("profile", "--csv", "profile.csv", Kind::Columns, csv, true));
+            call.add(Output("plot", "--plot", "profile.svg", Kind::File, plot));
+            return call.run(overwrite, progress);
+        },
+        py::arg("dem"), py::arg("from_"), py::arg("to"), py::arg("from_height") = 1.7,
+        py::arg("to_height") = 1.7, py::arg("frequency_mhz") = py::none(),
+        py::arg("refraction") = EarthModel::kDefaultRefraction,
+        py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
+        py::arg("threads") = py::none(), py::arg("csv") = py::none(), py::arg("plot") = py::none(),
+        py::arg("overwrite") = false, py::arg("progress") = py::none(),
+        (std::string(R"(The path profile between two points (lookfar link).
+
+    dem: a path or a lookfar.Dem.
+    from_, to: (x, y) of the two ends in crs (the exact points, bilinear heights).
+    from_height, to_height: antennas above the ground, metres; default 1.7.
+    frequency_mhz: MHz, for the first Fresnel zone; None (the default) for none.
+    csv: a path to write the profile CSV too; plot: a path for the SVG plot.
+    refraction: default 0.13.)") +
+         kGeometryDoc + R"(
+
+Returns a Result: .profile (dict of columns: distance_m, x, y, terrain_m, earth_bulge_m,
+sightline_m, clearance_m, fresnel_radius_m, fresnel_fraction), .summary, .table.)")
+            .c_str());
+
+    m.def(
+        "intervis",
+        [](const py::object& dem, const py::object& stations, const py::object& observer_height,
+           const py::object& reach, const py::object& refraction, const py::object& earth_model,
+           const py::object& earth_radius, const py::object& crs, const py::object& threads,
+           bool all_pairs, const py::object& output, const py::object& lines,
+           const py::object& points, bool overwrite, const py::object& progress) {
+            run::IntervisRun command;
+            Call call(command, dem);
+            const CommonArgs common{observer_height, py::none(),   reach, refraction,
+                                    earth_model,     earth_radius, crs,   py::none(),
+                                    threads};
+            setCommon(call.set(), call.dem(), common);
+            call.set().set("--stations", sitesCsv(stations, call.temp()));
+            if (all_pairs)
+                call.set().flag("--all-pairs");
+            call.add(Output("matrix", "--output", "matrix.csv", Kind::Columns, output, true));
+            call.add(Output("lines", "--lines", "lines.geojson", Kind::File, lines));
+            call.add(Output("points", "--points", "points.gpkg", Kind::File, points));
+            return call.run(overwrite, progress);
+        },
+        py::arg("dem"), py::arg("stations"), py::arg("observer_height") = 1.7,
+        py::arg("reach") = py::none(), py::arg("refraction") = EarthModel::kDefaultRefraction,
+        py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
+        py::arg("threads") = py::none(), py::arg("all_pairs") = false,
+        py::arg("output") = py::none(), py::arg("lines") = py::none(),
+        py::arg("points") = py::none(), py::arg("overwrite") = false,
+        py::arg("progress") = py::none(),
+        (std::string(R"(Which stations of a network see each other (lookfar intervis).
+
+    dem: a path or a lookfar.Dem.
+    stations: a CSV path (name,x,y[,height]) or a list of (name, x, y[, height]) rows.
+    observer_height: height of a station above the ground where its row gives none, metres;
+        default 1.7.
+    all_pairs: also list the pairs beyond reach in the matrix (visible "no", margin NaN).
+    output: a path to write the matrix CSV too (the CLI's -o); lines: a GeoJSON path for the
+        lines of sight; points: a .gpkg or .geojson path for the stations.)") +
+         kGeometryDoc + R"(
+
+Returns a Result: .matrix (dict of the matrix CSV's columns: from, to, visible, margin_m,
+distance_m, azimuth_deg, back_azimuth_deg, …), .summary, .table.)")
+            .c_str());
+
+    m.def(
+        "select",
+        [](const py::object& dem, const py::object& candidates, const py::object& count,
+           const py::object& coverage, const py::object& weight, const py::object& observer_height,
+           const py::object& target_height, const py::object& reach, const py::object& refraction,
+           const py::object& earth_model, const py::object& earth_radius, const py::object& crs,
+           const py::object& method, const py::object& threads, const py::object& output,
+           const py::object& csv, bool overwrite, const py::object& progress) {
+            run::SelectRun command;
+            Call call(command, dem);
+            const CommonArgs common{observer_height, target_height, reach,  refraction, earth_model,
+                                    earth_radius,    crs,           method, threads};
+            setCommon(call.set(), call.dem(), common);
+            call.set().set("--candidates", sitesCsv(candidates, call.temp()));
+            call.set().set("--count", count);
+            call.set().set("--coverage", coverage);
+            if (!weight.is_none())
+                call.set().set("--weight",
+                               py::str(py::module_::import("os").attr("fspath")(weight)));
+            call.add(Output("count", "--output", "count.tif", Kind::Raster, output, true));
+            call.add(Output("ranked", "--csv", "ranked.csv", Kind::Columns, csv, true));
+            return call.run(overwrite, progress);
+        },
+        py::arg("dem"), py::arg("candidates"), py::arg("count") = py::none(),
+        py::arg("coverage") = py::none(), py::arg("weight") = py::none(),
+        py::arg("observer_height") = 1.7, py::arg("target_height") = 0.0,
+        py::arg("reach") = py::none(), py::arg("refraction") = EarthModel::kDefaultRefraction,
+        py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
+        py::arg("method") = "fast", py::arg("threads") = py::none(), py::arg("output") = py::none(),
+        py::arg("csv") = py::none(), py::arg("overwrite") = false, py::arg("progress") = py::none(),
+        (std::string(R"(The candidate sites that together see the most ground (lookfar select).
+
+    dem: a path or a lookfar.Dem.
+    candidates: a CSV path (name,x,y[,height]) or a list of (name, x, y[, height]) rows.
+    count: choose at most this many sites; coverage: stop at this percent of the evaluated area
+        (or weight); give one or both.
+    weight: a raster on the DEM's grid weighting each cell (None: ground area).
+    observer_height: mast above the ground where a candidate has no height, metres; default 1.7.
+    target_height: target above the ground, metres; default 0.
+    method: "fast" (default) or "reference".
+    output: a path to write the count raster too (the CLI's -o); csv: a path for the ranked CSV.)") +
+         kGeometryDoc + R"(
+
+Returns a Result: .count (uint16: chosen sites that see the cell, 65535 no data), .ranked (dict
+of the ranked CSV's columns: rank, name, x, y, marginal_area_m2, cumulative_area_m2,
+cumulative_percent), .summary, .table.)")
+            .c_str());
+
+    m.def(
+        "signal",
+        [](const py::object& dem, const py::object& tx, const py::object& frequency_mhz,
+           const py::object& tx_height, const py::object& rx_height, const py::object& name,
+           const py::object& ground_permittivity, const py::object& ground_conductivity,
+           const py::object& polarization, const py::object& eirp_dbm,
+           const py::object& rx_gain_dbi, const py::object& min_level_dbm, const py::object& reach,
+           const py::object& refraction, const py::object& earth_model,
+           const py::object& earth_radius, const py::object& crs, const py::object& threads,
+           const py::object& level, const py::object& served, const py::object& fresnel,
+           const py::object& output, bool overwrite, const py::object& progress) {
+            run::SignalRun command;
+            Call call(command, dem);
+            const CommonArgs common{py::none(),   py::none(), reach,      refraction, earth_model,
+                                    earth_radius, crs,        py::none(), threads};
+            setCommon(call.set(), call.dem(), common);
+            OptionSetter& set = call.set();
+            set.set("--tx", pointText(tx, "--tx"));
+            set.set("--frequency-mhz", frequency_mhz);
+            set.set("--tx-height", tx_height);
+            set.set("--rx-height", rx_height);
+            set.set("--name", name);
+            set.set("--ground-permittivity", ground_permittivity);
+            set.set("--ground-conductivity", ground_conductivity);
+            set.set("--polarization", polarization);
+            set.set("--eirp-dbm", eirp_dbm);
+            set.set("--rx-gain-dbi", rx_gain_dbi);
+            set.set("--min-level-dbm", min_level_dbm);
+            call.add(Output("loss", "--output", "loss.tif", Kind::Raster, output, true));
+            call.add(Output("level", "--level", "level.tif", Kind::Raster, level));
+            call.add(Output("served", "--served", "served.tif", Kind::Raster, served));
+            call.add(Output("fresnel", "--fresnel", "fresnel.tif", Kind::Raster, fresnel));
+            return call.run(overwrite, progress);
+        },
+        py::arg("dem"), py::arg("tx"), py::arg("frequency_mhz") = py::none(),
+        py::arg("tx_height") = 30.0, py::arg("rx_height") = 1.5, py::arg("name") = "transmitter",
+        py::arg("ground_permittivity") = 22.0, py::arg("ground_conductivity") = 0.003,
+        py::arg("polarization") = "vertical", py::arg("eirp_dbm") = py::none(),
+        py::arg("rx_gain_dbi") = 0.0, py::arg("min_level_dbm") = py::none(),
+        py::arg("reach") = py::none(), py::arg("refraction") = 0.25,
+        py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
+        py::arg("threads") = py::none(), py::arg("level") = false, py::arg("served") = false,
+        py::arg("fresnel") = false, py::arg("output") = py::none(), py::arg("overwrite") = false,
+        py::arg("progress") = py::none(),
+        (std::string(R"(Radio loss from a transmitter to every cell (lookfar signal).
+
+    dem: a path or a lookfar.Dem.
+    tx: (x, y) of the transmitter in crs.
+    frequency_mhz: MHz, 30 to 50 000 (required).
+    tx_height, rx_height: antennas above the ground, metres; defaults 30 and 1.5.
+    name: the transmitter's name in the summary.
+    ground_permittivity (default 22), ground_conductivity (S/m, default 0.003), polarization
+        ("vertical" or "horizontal"): the ground of the smooth-Earth term.
+    eirp_dbm: EIRP, dBm, for the level; rx_gain_dbi: receiver gain, dBi (default 0);
+        min_level_dbm: the level that serves a cell, dBm.
+    level, served, fresnel: True for the .level (dBm), .served (uint8 1/0/255) and .fresnel
+        (worst clearance as a fraction of the first Fresnel zone) arrays; a path also writes it.
+    output: a path to write the loss raster too (the CLI's -o).
+    refraction: default 0.25 (4/3 Earth).)") +
+         kGeometryDoc + R"(
+
+Returns a Result: .loss (float32 dB, basic transmission loss), .level, .served, .fresnel (None
+unless asked for), .summary, .table.)")
+            .c_str());
+}
+
+}  // namespace lookfar::python
