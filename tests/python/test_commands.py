@@ -1,0 +1,87 @@
+"""lookfar.link, intervis, select and signal against the CLI: the same run classes, so the same
+cells and CSV bytes, and the same summary."""
+import numpy as np
+import pytest
+
+from conftest import assert_same_cells, cli_json, cli_sentence, comparable, raster
+
+DEMO = raster("demo_coast.tif")
+SITES = raster("demo_sites.csv")
+# demo_sites.csv (test_rasters/README.md): Quarrel Knap and Tollan Rigg.
+QUARREL = (426937.5, 5594387.5)
+TOLLAN = (429787.5, 5598562.5)
+
+
+def xy(point):
+    return "%r,%r" % point
+
+
+def test_link_equals_cli(lookfar, tmp_path):
+    cli = cli_json("link", DEMO, "--from", xy(QUARREL), "--to", xy(TOLLAN), "--from-height", 20,
+                   "--to-height", 10, "--frequency-mhz", 2400, "--refraction", 0.25,
+                   "--csv", tmp_path / "cli.csv")
+    r = lookfar.link(DEMO, from_=QUARREL, to=TOLLAN, from_height=20, to_height=10,
+                     frequency_mhz=2400, refraction=0.25, csv=tmp_path / "py.csv")
+    assert (tmp_path / "py.csv").read_bytes() == (tmp_path / "cli.csv").read_bytes()
+    assert comparable(r.summary) == comparable(cli)
+    expected = np.genfromtxt(tmp_path / "cli.csv", delimiter=",", names=True)
+    for name in expected.dtype.names:
+        assert np.array_equal(r.profile[name], expected[name], equal_nan=True), name
+    assert r.summary["line_of_sight"] in ("clear", "blocked")
+
+
+def test_intervis_equals_cli(lookfar, tmp_path):
+    cli = cli_json("intervis", DEMO, "--stations", SITES, "--reach", 6000, "--all-pairs",
+                   "-o", tmp_path / "cli.csv")
+    r = lookfar.intervis(DEMO, SITES, reach=6000, all_pairs=True, output=tmp_path / "py.csv")
+    assert (tmp_path / "py.csv").read_bytes() == (tmp_path / "cli.csv").read_bytes()
+    assert comparable(r.summary) == comparable(cli)
+    lines = (tmp_path / "cli.csv").read_text().splitlines()
+    assert len(r.matrix["from"]) == len(lines) - 1 == 7 * 6  # every ordered pair of 7 sites
+    assert set(r.matrix["visible"]) <= {"yes", "no"}
+    # Without output= the matrix stays in memory and the summary names no file.
+    mem = lookfar.intervis(DEMO, SITES, reach=6000, all_pairs=True)
+    assert "output" not in mem.summary.get("outputs", {})
+    assert mem.matrix["from"] == r.matrix["from"]
+
+
+def test_select_equals_cli(lookfar, tmp_path):
+    cli = cli_json("select", DEMO, "--candidates", SITES, "--count", 3, "--reach", 8000,
+                   "--target-height", 2, "-o", tmp_path / "c.tif", "--csv", tmp_path / "cli.csv")
+    r = lookfar.select(DEMO, SITES, count=3, reach=8000, target_height=2,
+                       csv=tmp_path / "py.csv")
+    assert_same_cells(r.count, tmp_path / "c.tif")
+    assert (tmp_path / "py.csv").read_bytes() == (tmp_path / "cli.csv").read_bytes()
+    assert comparable(r.summary) == comparable(cli)
+    assert r.ranked["rank"].tolist() == [1, 2, 3]
+
+
+def test_signal_equals_cli(lookfar, tmp_path):
+    cli = cli_json("signal", DEMO, "--tx", xy(QUARREL), "--frequency-mhz", 900, "--reach", 4000,
+                   "--eirp-dbm", 50, "--min-level-dbm", -90, "-o", tmp_path / "loss.tif",
+                   "--level", tmp_path / "level.tif", "--served", tmp_path / "served.tif",
+                   "--fresnel", tmp_path / "fresnel.tif")
+    r = lookfar.signal(DEMO, tx=QUARREL, frequency_mhz=900, reach=4000, eirp_dbm=50,
+                       min_level_dbm=-90, level=True, served=True, fresnel=True)
+    for name in ("loss", "level", "served", "fresnel"):
+        assert_same_cells(getattr(r, name), tmp_path / (name + ".tif"))
+    assert comparable(r.summary) == comparable(cli)
+    assert r.loss.dtype == np.float32 and r.served.dtype == np.uint8
+
+
+@pytest.mark.parametrize("cli_args, call", [
+    (["link", DEMO, "--from", xy(QUARREL), "--to", xy(TOLLAN), "--frequency-mhz", "-5"],
+     lambda lf: lf.link(DEMO, from_=QUARREL, to=TOLLAN, frequency_mhz=-5)),
+    (["signal", DEMO, "--tx", xy(QUARREL), "-o", "unused.tif"],
+     lambda lf: lf.signal(DEMO, tx=QUARREL)),
+    (["select", DEMO, "--candidates", SITES, "--count", "0", "-o", "unused.tif"],
+     lambda lf: lf.select(DEMO, SITES, count=0)),
+    (["intervis", DEMO, "--stations", raster("no_such.csv"), "-o", "unused.csv"],
+     lambda lf: lf.intervis(DEMO, raster("no_such.csv"))),
+])
+def test_errors_carry_the_cli_sentence(lookfar, cli_args, call):
+    code, sentence = cli_sentence(*cli_args)
+    error = {2: lookfar.UsageError, 3: lookfar.InputError}[code]
+    with pytest.raises(error) as e:
+        call(lookfar)
+    assert str(e.value) == sentence
