@@ -13,6 +13,8 @@
 #include "lookfar/run/LinkRun.hpp"
 #include "lookfar/run/SelectRun.hpp"
 #include "lookfar/run/SignalRun.hpp"
+#include "lookfar/run/ViewshedRun.hpp"
+#include "lookfar/run/InfoRun.hpp"
 
 namespace lookfar::python {
 
@@ -118,9 +120,14 @@ def _csv_columns(path):
     return columns
 )";
 
+const char* const kHeightDoc = R"(
+    observer_height: eye above the ground, metres (or a text with a unit: "30ft"); default 1.7.
+    target_height: target above the ground, metres; default 0.)";
+
 const char* const kGeometryDoc = R"(
     reach: farthest distance considered, metres; None (the default) is unlimited.
-    refraction: refraction coefficient k, -1 <= k < 1.
+    refraction: refraction coefficient k, -1 <= k < 1 (0.13: light over land; 0.25: the
+        4/3-Earth radio value).
     earth_model: "ellipsoid" (default), "sphere" (earth_radius) or "flat".
     earth_radius: radius of the sphere, metres; default 6371008.8; only with "sphere".
     crs: CRS of the coordinates given (anything PROJ reads); None (the default) is the DEM's.
@@ -141,14 +148,97 @@ py::arg_v earthRadiusArg() {
 void registerCommands(py::module_& m) {
     py::exec(kCsvColumns, m.attr("__dict__"));
     py::class_<Result>(m, "Result", py::dynamic_attr(),
-                       "What lookfar.link, intervis, select and signal return: arrays (or CSV "
-                       "columns), .summary (the CLI's summary JSON as a dict) and .table.")
+                       "What the functions return: arrays (or CSV columns), .summary (the CLI's "
+                       "summary JSON as a dict) and .table (the CLI's summary table).")
         .def("__repr__", [](const py::object& self) {
             std::string names;
             for (const auto& item : self.attr("__dict__").cast<py::dict>())
                 names += (names.empty() ? "" : ", ") + item.first.cast<std::string>();
             return "<lookfar.Result: " + names + ">";
         });
+
+    m.def(
+        "info",
+        [](const py::object& dem, bool approx, const py::object& progress) {
+            run::InfoRun command;
+            Call call(command, dem);
+            setCommon(call.set(), call.dem(), CommonArgs());
+            if (approx)
+                call.set().flag("--approx");
+            return call.run(false, progress);
+        },
+        py::arg("dem"), py::arg("approx") = false, py::arg("progress") = py::none(),
+        R"(What lookfar sees in a DEM (lookfar info): size, CRS, units, cell size, extent,
+elevations.
+
+    dem: a path or a lookfar.Dem.
+    approx: statistics from the DEM's overview of at least a million cells, when it has
+        overviews (quick on large DEMs).
+    progress: None, or a callable progress(fraction).
+
+Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
+
+    m.def(
+        "viewshed",
+        [](const py::object& dem, const py::object& observer, const py::object& observer_height,
+           const py::object& target_height, const py::object& reach, const py::object& refraction,
+           const py::object& earth_model, const py::object& earth_radius, const py::object& crs,
+           const py::object& method, const py::object& threads, const py::object& margin,
+           const py::object& angle, const py::object& output, const py::object& sites,
+           const py::object& name, const py::object& polygons, bool overwrite,
+           const py::object& progress) {
+            run::ViewshedRun command;
+            Call call(command, dem);
+            const CommonArgs common{observer_height, target_height, reach,  refraction, earth_model,
+                                    earth_radius,    crs,           method, threads};
+            setCommon(call.set(), call.dem(), common);
+            if (!observer.is_none())
+                call.set().set("--observer", pointText(observer, "--observer"));
+            const bool many = !sites.is_none();
+            if (many)
+                call.set().set("--sites", sitesCsv(sites, call.temp()));
+            call.set().set("--name", name);
+            call.add(Output(many ? "count" : "visible", "--output",
+                            many ? "count.tif" : "visible.tif", Kind::Raster, output, true));
+            call.add(Output("margin", "--margin", "margin.tif", Kind::Raster, margin));
+            call.add(Output("angle", "--angle", "angle.tif", Kind::Raster, angle));
+            call.add(Output("polygons", "--polygons", "polygons.gpkg", Kind::File, polygons));
+            py::object r = call.run(overwrite, progress);
+            r.attr(many ? "visible" : "count") = py::none();
+            return r;
+        },
+        py::arg("dem"), py::arg("observer") = py::none(), py::arg("observer_height") = 1.7,
+        py::arg("target_height") = 0.0, py::arg("reach") = py::none(),
+        py::arg("refraction") = EarthModel::kDefaultRefraction,
+        py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
+        py::arg("method") = "fast", py::arg("threads") = py::none(), py::arg("margin") = false,
+        py::arg("angle") = false, py::arg("output") = py::none(), py::arg("sites") = py::none(),
+        py::arg("name") = "observer", py::arg("polygons") = py::none(),
+        py::arg("overwrite") = false, py::arg("progress") = py::none(),
+        (std::string(R"(Which cells a target can be seen from (lookfar viewshed).
+
+    dem: a path or a lookfar.Dem.
+    observer: (x, y) of the observer in crs (it stands on the centre of the cell that holds it,
+        on that cell's elevation); or give sites.
+    sites: instead of observer, a CSV path (name,x,y[,height]) or a list of (name, x, y[,
+        height]) rows (height: metres above the ground, else observer_height); the result is
+        .count.
+    name: the observer's name in the summary; default "observer".
+    margin: True for the .margin array; a path also writes it there (Float32 GeoTIFF).
+    angle: True for the .angle array (one observer); a path also writes it there.
+    output: a path to write the visibility (or count) GeoTIFF too, as the CLI's -o; None keeps
+        it in memory only.
+    polygons: a .gpkg or .geojson path for the visible areas as polygons.
+    method: "fast" (default) or "reference" (judges every cell on its own; same result,
+        slower).)") +
+         kHeightDoc + kGeometryDoc + R"(
+
+Returns a Result: .visible (uint8: 1 visible, 0 hidden, 255 no data: outside reach or DEM
+no-data; None with sites), .count (uint16: sites that see the cell, 65535 no data; None
+without sites), .margin (float32 metres: DEM + target height minus the limiting sightline,
+>= 0 visible, NaN no data; None unless asked for), .angle (float32 degrees: elevation angle
+from the eye to the target point; None unless asked for), .summary, .table.)")
+            .c_str());
 
     m.def(
         "link",

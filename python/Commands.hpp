@@ -1,6 +1,7 @@
 #pragma once
-// lookfar.link, intervis, select and signal: each through its command's run class, returning its
-// rasters as arrays, its CSVs as columns and the summary dict (docs/python.md).
+// lookfar.info, viewshed, link, intervis, select and signal: each through its command's run
+// class, returning its rasters as arrays, its CSVs as columns and the summary dict
+// (docs/python.md).
 #include "Bridge.hpp"
 
 namespace lookfar::python {

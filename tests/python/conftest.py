@@ -38,6 +38,13 @@ def cli_json(*args):
     return json.loads(out)
 
 
+def cli_table(*args):
+    """The CLI's summary table (stdout without --json)."""
+    code, out, err = run_cli(*args, "--quiet")
+    assert code == 0, err
+    return out
+
+
 def cli_sentence(*args):
     """The exit code and the sentence the CLI prints for an error ("lookfar: " left off)."""
     code, _, err = run_cli(*args)

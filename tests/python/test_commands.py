@@ -3,7 +3,7 @@ cells and CSV bytes, and the same summary."""
 import numpy as np
 import pytest
 
-from conftest import assert_same_cells, cli_json, cli_sentence, comparable, raster
+from conftest import assert_same_cells, cli_json, cli_sentence, cli_table, comparable, raster
 
 DEMO = raster("demo_coast.tif")
 SITES = raster("demo_sites.csv")
@@ -85,3 +85,18 @@ def test_errors_carry_the_cli_sentence(lookfar, cli_args, call):
     with pytest.raises(error) as e:
         call(lookfar)
     assert str(e.value) == sentence
+
+
+def test_info_equals_cli(lookfar):
+    cli = cli_json("info", raster("twin_usft.tif"))
+    r = lookfar.info(lookfar.read_dem(raster("twin_usft.tif")))
+    assert comparable(r.summary) == comparable(cli)
+    assert r.table == cli_table("info", raster("twin_usft.tif"))
+
+
+def test_viewshed_polygons_are_written_as_by_the_cli(lookfar, tmp_path):
+    cli = cli_json("viewshed", DEMO, "--observer", xy(QUARREL), "--reach", 3000,
+                   "-o", tmp_path / "v.tif", "--polygons", tmp_path / "cli.geojson")
+    r = lookfar.viewshed(DEMO, observer=QUARREL, reach=3000, polygons=tmp_path / "py.geojson")
+    assert comparable(r.summary)["polygons"]["features"] == cli["polygons"]["features"]
+    assert (tmp_path / "py.geojson").read_bytes() == (tmp_path / "cli.geojson").read_bytes()
