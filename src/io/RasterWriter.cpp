@@ -288,10 +288,14 @@ std::string RasterWriter::finish() {
     const bool cog = spec_.layout == RasterLayout::Cog;
     if (!cog && spec_.overviews != Overviews::None) {
         auto factors = overviewFactors(spec_.width, spec_.height);
-        if (!factors.empty())
-            GDALBuildOverviews(ds, resamplingName(spec_.overviews),
-                               static_cast<int>(factors.size()), factors.data(), 0, nullptr,
-                               nullptr, nullptr);
+        if (!factors.empty() && GDALBuildOverviews(ds, resamplingName(spec_.overviews),
+                                                   static_cast<int>(factors.size()), factors.data(),
+                                                   0, nullptr, nullptr, nullptr) != CE_None) {
+            const std::string why = io_detail::lastGdalError();
+            GDALClose(ds);
+            throw OutputError(spec_.path + ": building the overviews failed (" +
+                              writeFailureReason(spec_.path, why, errno) + ")");
+        }
     }
     GDALFlushCache(ds);
     GDALClose(ds);

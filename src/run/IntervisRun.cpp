@@ -355,11 +355,10 @@ OptionTable IntervisRun::declare() {
 
 RunReport IntervisRun::run(const RunEnv& env) {
     const IntervisRunOptions& s = options;
-    if (!s.points.empty())
-        vectorFormatFor(s.points, "--points");  // exit 2 before any work
-    RunContext ctx = prepareRun(env, "intervis", s.common,
-                                {{"-o", s.matrix}, {"--lines", s.lines}, {"--points", s.points}},
-                                {s.stations}, DemCells::Later);
+    RunContext ctx = prepareRun(
+        env, "intervis", s.common,
+        {{"-o", s.matrix}, {"--lines", s.lines}, {"--points", s.points, OutputKind::Vector}},
+        {s.stations}, DemCells::Later);
     ctx.run.method = "reference";
     ctx.run.extra["STATIONS"] = s.stations;
     // Stations: names unique, inside the DEM and on data (exit 3 naming the file and line).

@@ -50,6 +50,19 @@ CheckedCommon checkCommonOptions(const CommonOptions& options) {
     return c;
 }
 
+/// Raster outputs are GeoTIFFs and vector outputs GeoPackage or GeoJSON: a name asking for
+/// anything else is refused before any work (exit 2) rather than written in another format.
+void checkOutputFormats(const std::vector<NamedPath>& outputs) {
+    for (const auto& out : outputs) {
+        if (out.path.empty())
+            continue;
+        if (out.kind == OutputKind::Raster)
+            checkRasterExtension(out.path, out.option);
+        else if (out.kind == OutputKind::Vector)
+            vectorFormatFor(out.path, out.option);
+    }
+}
+
 /// Every output path given (and --summary): no two the same file (exit 2), each writable and
 /// not an input (exit 4).
 void checkOutputs(const CommonOptions& options, const std::vector<NamedPath>& outputs,
@@ -107,6 +120,7 @@ RunContext prepareRun(const RunEnv& env, const std::string& command, const Commo
     ctx.progress = env.progress;
     // Option values first (exit 2) ...
     const CheckedCommon c = checkCommonOptions(options);
+    checkOutputFormats(outputs);
     ctx.observer_height_m = c.observer_height_m;
     ctx.target_height_m = c.target_height_m;
     ctx.reach_m = c.reach_m;

@@ -378,14 +378,12 @@ RunReport SelectRun::run(const RunEnv& env) {
     std::vector<std::string> inputs = {s.candidates};
     if (!s.weight.empty())
         inputs.push_back(s.weight);
-    if (!s.polygons.empty())
-        vectorFormatFor(s.polygons, "--polygons");  // exit 2 before any work
-    if (!s.points.empty())
-        vectorFormatFor(s.points, "--points");
-    RunContext ctx = prepareRun(
-        env, "select", s.common,
-        {{"-o", s.output}, {"--csv", s.csv}, {"--polygons", s.polygons}, {"--points", s.points}},
-        inputs, DemCells::Later);
+    RunContext ctx = prepareRun(env, "select", s.common,
+                                {{"-o", s.output, OutputKind::Raster},
+                                 {"--csv", s.csv},
+                                 {"--polygons", s.polygons, OutputKind::Vector},
+                                 {"--points", s.points, OutputKind::Vector}},
+                                inputs, DemCells::Later);
     const PlacedSites placed =
         placeSitesCsv(ctx, s.candidates, "candidate", "the ranking needs unique names");
     const std::vector<Observer>& candidates = placed.observers;  // cells of the whole DEM

@@ -239,8 +239,10 @@ RunReport SignalRun::run(const RunEnv& env) {
     opt.want_fresnel = !s.fresnel.empty();
     const MapPoint given = parsePoint(s.tx, "--tx");
 
-    const std::vector<NamedPath> outputs = {
-        {"-o", s.output}, {"--level", s.level}, {"--served", s.served}, {"--fresnel", s.fresnel}};
+    const std::vector<NamedPath> outputs = {{"-o", s.output, OutputKind::Raster},
+                                            {"--level", s.level, OutputKind::Raster},
+                                            {"--served", s.served, OutputKind::Raster},
+                                            {"--fresnel", s.fresnel, OutputKind::Raster}};
     RunContext ctx = prepareRun(env, "signal", s.common, outputs, {}, DemCells::Later);
     const Observer tx = placeObserver(ctx, "--tx", given.x, given.y, tx_h, s.name);
     readDemWindow(ctx, workWindow(ctx, {tx}));

@@ -37,9 +37,14 @@ struct PlacedSite {
 
 nlohmann::json observerJson(const RunContext& ctx, const PlacedSite& p, const ViewshedStats& s) {
     const GridGeometry& g = ctx.grid;
-    nlohmann::json bands = nlohmann::json::object();
-    for (int b = 0; b < kDistanceBandCount; ++b)
-        bands[distanceBandLabel(b)] = s.visible_area_by_band_m2[b];
+    // An array, nearest band first (an object's keys would come out in alphabetical order).
+    nlohmann::json bands = nlohmann::json::array();
+    for (const DistanceBand& b : s.bands) {
+        bands.push_back({{"band", b.label},
+                         {"from_m", b.from_m},
+                         {"to_m", std::isfinite(b.to_m) ? nlohmann::json(b.to_m) : nullptr},
+                         {"visible_area_m2", b.visible_area_m2}});
+    }
     return {{"name", p.observer.name},
             {"x", p.x},
             {"y", p.y},
@@ -56,16 +61,16 @@ nlohmann::json observerJson(const RunContext& ctx, const PlacedSite& p, const Vi
             {"evaluated_area_m2", s.evaluated_area_m2},
             {"visible_fraction", s.visible_fraction},
             {"farthest_visible_m", s.farthest_visible_m},
-            {"visible_area_by_distance_m2", bands}};
+            {"visible_area_by_distance", bands}};
 }
 
 std::string bandTable(const ViewshedStats& s) {
     TextTable t("Visible area by distance from the observer");
     t.setHeader({"distance", "visible area", "share of the visible area"});
-    for (int b = 0; b < kDistanceBandCount; ++b) {
-        const double a = s.visible_area_by_band_m2[b];
-        t.addRow({distanceBandLabel(b), formatArea(a),
-                  s.visible_area_m2 > 0 ? percent(a / s.visible_area_m2) : "-"});
+    for (const DistanceBand& b : s.bands) {
+        const double a = b.visible_area_m2;
+        t.addRow(
+            {b.label, formatArea(a), s.visible_area_m2 > 0 ? percent(a / s.visible_area_m2) : "-"});
     }
     return t.render();
 }
@@ -188,7 +193,7 @@ std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const Place
     const GridGeometry& g = ctx.dem.geometry;  // of the window read
     const Observer o = inWindow(ctx, p.observer);
     ViewshedGrids grids = computeViewshed(ctx.dem.z, g, ctx.earth, o, opt, *ctx.progress);
-    const ViewshedStats s = summarizeViewshed(grids.visible, grids.window, g, o);
+    const ViewshedStats s = summarizeViewshed(grids.visible, grids.window, g, o, opt.reach_m);
     ctx.dem.z = Grid<float>();  // the elevations are no longer needed: free them first
     const float nan = std::numeric_limits<float>::quiet_NaN();
     rasters.write(st.output, PixelType::Byte, kNoVisibility,
@@ -391,12 +396,10 @@ RunReport ViewshedRun::run(const RunEnv& env) {
     const ViewshedRunOptions& st = options;
     MapPoint given{};
     const bool single = checkObserverOptions(st, &given);
-    std::vector<NamedPath> outputs = {{"-o", st.output},
-                                      {"--margin", st.margin},
-                                      {"--angle", st.angle},
-                                      {"--polygons", st.polygons}};
-    if (!st.polygons.empty())
-        vectorFormatFor(st.polygons, "--polygons");  // exit 2 before any work
+    std::vector<NamedPath> outputs = {{"-o", st.output, OutputKind::Raster},
+                                      {"--margin", st.margin, OutputKind::Raster},
+                                      {"--angle", st.angle, OutputKind::Raster},
+                                      {"--polygons", st.polygons, OutputKind::Vector}};
     std::vector<std::string> extra_inputs;
     if (!single)
         extra_inputs.push_back(st.sites);

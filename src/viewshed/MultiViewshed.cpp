@@ -85,7 +85,8 @@ MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& ge
         [&](std::int64_t i) {
             ViewshedGrids g =
                 computeViewshed(dem, geometry, earth, observers[i], site_options, inner);
-            out.sites[i] = summarizeViewshed(g.visible, g.window, geometry, observers[i]);
+            out.sites[i] =
+                summarizeViewshed(g.visible, g.window, geometry, observers[i], options.reach_m);
 #pragma omp critical(lookfar_multiviewshed_merge)
             merge(out, g);
         },

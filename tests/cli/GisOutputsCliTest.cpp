@@ -105,6 +105,42 @@ TEST(GisOutputsCliTest, UnknownFormatIsRefusedBeforeAnyWork) {
     EXPECT_TRUE(dir.entries().empty());
 }
 
+// Issue 12 item 7: a raster output named for another format (or for none) was written as a
+// GeoTIFF in silence. Every raster option of every command is refused before any work, naming
+// the option and the path; the DEM is not even opened (a missing DEM would be exit 3).
+TEST(GisOutputsCliTest, RasterNamesWithoutATiffExtensionAreRefusedBeforeAnyWork) {
+    ScratchDir dir;
+    const std::string missing_dem = dir.file("no-such-dem.tif");
+    const std::string obs = "425087.5,5597212.5";
+    struct Case {
+        std::vector<std::string> args;
+        std::string option;
+    };
+    const std::vector<Case> cases = {
+        {{"viewshed", missing_dem, "--observer", obs, "-o", dir.file("v.png")}, "-o"},
+        {{"viewshed", missing_dem, "--observer", obs, "-o", dir.file("v")}, "-o"},
+        {{"viewshed", missing_dem, "--observer", obs, "-o", dir.file("v.tif"), "--margin",
+          dir.file("m.jpg")},
+         "--margin"},
+        {{"viewshed", missing_dem, "--observer", obs, "-o", dir.file("v.tif"), "--angle",
+          dir.file("a.tif.bak")},
+         "--angle"},
+        {{"select", missing_dem, "--candidates", kSites, "--count", "2", "-o", dir.file("s.img")},
+         "-o"},
+        {{"signal", missing_dem, "--tx", obs, "--frequency-mhz", "446", "--eirp-dbm", "40", "-o",
+          dir.file("l.tif"), "--level", dir.file("level.asc")},
+         "--level"},
+    };
+    for (const auto& c : cases) {
+        SCOPED_TRACE(c.args.back());
+        expectRefused(c.args, 2, {c.option, c.args.back(), ".tif extension"}, dir);
+    }
+    // Upper case and .tiff are GeoTIFF names too.
+    const CliResult r = runLookfar({"viewshed", kDemo, "--observer", obs, "-o", dir.file("V.TIFF"),
+                                    "--reach", "500", "--quiet"});
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+}
+
 // Issue 15 item 1: the visible area as polygons. Their areas add up to the summary's visible area
 // (the same cells), and OGR's own planar area of the traced outlines agrees (projected DEM: the
 // outlines follow cell edges, so within rounding).

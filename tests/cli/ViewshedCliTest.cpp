@@ -90,16 +90,46 @@ TEST(ViewshedCliTest, DistanceBandsOfAVisibleDiscHaveAnnulusAreas) {
                       dir.file("v.tif"), "--observer-height", "60", "--refraction", "0",
                       "--earth-model", "sphere"});
     const auto& o = j["observers"][0];
-    const auto& bands = o["visible_area_by_distance_m2"];
+    const auto& bands = o["visible_area_by_distance"];
+    ASSERT_EQ(bands.size(), 6u);  // nearest first
     const double pi = 3.14159265358979;
-    EXPECT_NEAR(bands["1-5 km"].get<double>(), pi * (25e6 - 1e6), 0.01 * pi * 24e6);
-    EXPECT_NEAR(bands["5-10 km"].get<double>(), pi * (100e6 - 25e6), 0.01 * pi * 75e6);
-    EXPECT_NEAR(bands["10-25 km"].get<double>(), pi * (625e6 - 100e6), 0.01 * pi * 525e6);
+    EXPECT_EQ(bands[1]["band"], "1-5 km");
+    EXPECT_NEAR(bands[1]["visible_area_m2"].get<double>(), pi * (25e6 - 1e6), 0.01 * pi * 24e6);
+    EXPECT_EQ(bands[2]["band"], "5-10 km");
+    EXPECT_NEAR(bands[2]["visible_area_m2"].get<double>(), pi * (100e6 - 25e6), 0.01 * pi * 75e6);
+    EXPECT_EQ(bands[3]["band"], "10-25 km");
+    EXPECT_NEAR(bands[3]["visible_area_m2"].get<double>(), pi * (625e6 - 100e6), 0.01 * pi * 525e6);
     double sum = 0;
-    for (const auto& [label, area] : bands.items())
-        sum += area.get<double>();
+    for (const auto& b : bands)
+        sum += b["visible_area_m2"].get<double>();
     EXPECT_NEAR(sum, o["visible_area_m2"].get<double>(), 1.0);
-    EXPECT_DOUBLE_EQ(bands[">50 km"].get<double>(), 0.0);
+    EXPECT_EQ(bands[5]["band"], ">50 km");
+    EXPECT_TRUE(bands[5]["to_m"].is_null());
+    EXPECT_DOUBLE_EQ(bands[5]["visible_area_m2"].get<double>(), 0.0);
+}
+
+// Issue 12 item 13: the bands include their upper bound as the reach does, and the last band
+// ends at the reach. On a flat sea seen from 60 m the whole disc of a 10 km reach is visible, so
+// the bands are 0-1, 1-5 and 5-10 km, the last one holding the annulus up to the reach (1 % for
+// the cell staircase) and nothing beyond.
+TEST(ViewshedCliTest, DistanceBandsEndAtTheReach) {
+    ScratchDir dir;
+    auto j = runJson({"viewshed", testRaster("flat_sea.tif"), "--observer", kSeaCentre, "-o",
+                      dir.file("v.tif"), "--observer-height", "60", "--reach", "10km"});
+    const auto& bands = j["observers"][0]["visible_area_by_distance"];
+    ASSERT_EQ(bands.size(), 3u) << bands.dump();
+    EXPECT_EQ(bands[2]["band"], "5-10 km");
+    EXPECT_DOUBLE_EQ(bands[2]["from_m"].get<double>(), 5000.0);
+    EXPECT_DOUBLE_EQ(bands[2]["to_m"].get<double>(), 10000.0);
+    const double pi = 3.14159265358979;
+    EXPECT_NEAR(bands[2]["visible_area_m2"].get<double>(), pi * (100e6 - 25e6), 0.01 * pi * 75e6);
+    // A reach between the edges: the last band is named for it.
+    j = runJson({"viewshed", testRaster("flat_sea.tif"), "--observer", kSeaCentre, "-o",
+                 dir.file("w.tif"), "--observer-height", "60", "--reach", "7.5km", "--overwrite"});
+    const auto& b2 = j["observers"][0]["visible_area_by_distance"];
+    ASSERT_EQ(b2.size(), 3u) << b2.dump();
+    EXPECT_EQ(b2[2]["band"], "5-7.5 km");
+    EXPECT_NEAR(b2[2]["visible_area_m2"].get<double>(), pi * (56.25e6 - 25e6), 0.01 * pi * 31.25e6);
 }
 
 // Exact geometry (wall.tif): an eye h above flat ground a metres west of a wall of height H

@@ -67,7 +67,7 @@ TEST(ViewshedMultiSiteTest, CountIsTheSumOfTheSitesViewshedsAndMarginTheMax) {
     Grid<float> best(n, n, std::numeric_limits<float>::quiet_NaN());
     for (std::size_t i = 0; i < sites.size(); ++i) {
         ViewshedGrids one = computeViewshed(dem, g, earth, sites[i], opt);
-        ViewshedStats s = summarizeViewshed(one.visible, one.window, g, sites[i]);
+        ViewshedStats s = summarizeViewshed(one.visible, one.window, g, sites[i], opt.reach_m);
         EXPECT_EQ(multi.sites[i].visible_cells, s.visible_cells) << sites[i].name;
         EXPECT_EQ(multi.sites[i].evaluated_cells, s.evaluated_cells);
         EXPECT_DOUBLE_EQ(multi.sites[i].farthest_visible_m, s.farthest_visible_m);
@@ -174,18 +174,22 @@ TEST(ViewshedStatsTest, AreasFollowTheRowsOfAGeographicGrid) {
             }
         }
     }
-    ViewshedStats s = summarizeViewshed(vis, CellWindow{0, 0, w, h}, g, o);
+    ViewshedStats s = summarizeViewshed(vis, CellWindow{0, 0, w, h}, g, o,
+                                        std::numeric_limits<double>::infinity());
     EXPECT_NEAR(s.visible_area_m2, visible_area, 1e-6 * visible_area);
     EXPECT_NEAR(s.evaluated_area_m2, evaluated_area, 1e-6 * evaluated_area);
     EXPECT_NEAR(s.visible_fraction, visible_area / evaluated_area, 1e-12);
     EXPECT_NEAR(s.farthest_visible_m, farthest, 1e-6);
     double bands = 0;
-    for (double a : s.visible_area_by_band_m2)
-        bands += a;
+    for (const DistanceBand& b : s.bands)
+        bands += b.visible_area_m2;
     EXPECT_NEAR(bands, s.visible_area_m2, 1e-6 * visible_area);
     // 30″ cells at 60° N: about 463 m × 927 m; the grid spans about 18.5 km × 27.8 km.
-    EXPECT_GT(s.visible_area_by_band_m2[3], 0.0);  // 10-25 km
-    EXPECT_EQ(s.visible_area_by_band_m2[5], 0.0);  // nothing beyond 50 km
+    ASSERT_EQ(s.bands.size(), 6u);
+    EXPECT_EQ(s.bands[3].label, "10-25 km");
+    EXPECT_GT(s.bands[3].visible_area_m2, 0.0);
+    EXPECT_EQ(s.bands[5].label, ">50 km");
+    EXPECT_EQ(s.bands[5].visible_area_m2, 0.0);  // nothing beyond 50 km
     EXPECT_LT(g.cellAreaM2(h - 1), g.cellAreaM2(0) * 1.01);
     EXPECT_GT(g.cellAreaM2(h - 1), g.cellAreaM2(0));  // cells grow towards the equator
 }

@@ -61,10 +61,18 @@ struct RunContext {
     std::unique_ptr<OutputSet> outputs = std::make_unique<OutputSet>();
 };
 
+/// What an output holds, for the check of its file name's extension before any work.
+enum class OutputKind {
+    Any,     ///< text, CSV, JSON, SVG: any name
+    Raster,  ///< a GeoTIFF: .tif or .tiff
+    Vector,  ///< a GeoPackage or GeoJSON, chosen by the extension
+};
+
 /// An output path and the option that gave it (for messages).
 struct NamedPath {
     std::string option;
     std::string path;
+    OutputKind kind = OutputKind::Any;
 };
 
 /// When prepareRun reads the DEM's cells.
@@ -73,7 +81,8 @@ enum class DemCells {
     Later,  ///< none: the command places its observers, then calls readDemWindow
 };
 
-/// Validates the common options (exit 2 on bad values), opens the DEM (exit 3), checks every
+/// Validates the common options and the extension of every raster and vector output (exit 2 on
+/// bad values), opens the DEM (exit 3), checks every
 /// output path before any work — two outputs that are the same file are exit 2 naming both
 /// options; an output that cannot be written is exit 4 — then reads the DEM's cells unless
 /// `cells` is Later. `outputs` are the paths this run will write (empty paths are skipped);

@@ -12,7 +12,9 @@
 //   distance    the engines' fast ground distance from the observer's cell (LocalFrame)
 #include <array>
 #include <cstdint>
+#include <limits>
 #include <string>
+#include <vector>
 
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
@@ -21,28 +23,37 @@
 
 namespace lookfar {
 
-/// Distance bands of the visible-area breakdown: [0, 1), [1, 5), [5, 10), [10, 25), [25, 50)
-/// and [50, ∞) km from the observer.
-inline constexpr int kDistanceBandCount = 6;
-inline constexpr std::array<double, kDistanceBandCount> kDistanceBandStartM = {
-    0.0, 1000.0, 5000.0, 10000.0, 25000.0, 50000.0};
-/// Label of band `i` ("0-1 km", …, ">50 km").
-std::string distanceBandLabel(int i);
+/// One distance band of the visible-area breakdown: cells whose centre lies more than `from_m`
+/// and at most `to_m` from the observer's cell centre (the first band also holds 0). Upper
+/// bounds are included, as the reach is (a cell exactly at a 10 km reach is in the band that
+/// ends at 10 km).
+struct DistanceBand {
+    double from_m = 0;
+    double to_m = std::numeric_limits<double>::infinity();  ///< infinite: no upper bound
+    std::string label;                                      ///< "0-1 km", "5-7.5 km", ">50 km"
+    double visible_area_m2 = 0;
+};
+
+/// The bands for a reach (metres, > 0; infinite when unlimited): edges at 1, 5, 10, 25 and
+/// 50 km below the reach, the last band ending at the reach, or open (">50 km") when the reach
+/// is unlimited.
+std::vector<DistanceBand> distanceBands(double reach_m);
 
 struct ViewshedStats {
     std::int64_t visible_cells = 0;
     std::int64_t evaluated_cells = 0;
-    double visible_area_m2 = 0;     ///< true ground area of the visible cells, m²
-    double evaluated_area_m2 = 0;   ///< true ground area of the evaluated cells, m²
-    double visible_fraction = 0;    ///< visible_area_m2 / evaluated_area_m2, [0, 1]
-    double farthest_visible_m = 0;  ///< distance of the farthest visible cell centre, metres
-    std::array<double, kDistanceBandCount> visible_area_by_band_m2{};  ///< m² per band
+    double visible_area_m2 = 0;       ///< true ground area of the visible cells, m²
+    double evaluated_area_m2 = 0;     ///< true ground area of the evaluated cells, m²
+    double visible_fraction = 0;      ///< visible_area_m2 / evaluated_area_m2, [0, 1]
+    double farthest_visible_m = 0;    ///< distance of the farthest visible cell centre, metres
+    std::vector<DistanceBand> bands;  ///< visible area by distance (distanceBands(reach))
 };
 
 /// Statistics of one observer's visibility grid, which covers `window` of the DEM whose
 /// geometry is `geometry`. Identical for any number of threads.
 ViewshedStats summarizeViewshed(const Grid<std::uint8_t>& visible, const CellWindow& window,
-                                const GridGeometry& geometry, const Observer& observer);
+                                const GridGeometry& geometry, const Observer& observer,
+                                double reach_m);
 
 /// Value of a count grid where no site reached the cell or the DEM has no data.
 inline constexpr std::uint16_t kNoCount = 65535;
