@@ -120,7 +120,9 @@ void describeChoice(RunContext& ctx, const SelectRunOptions& s, const Goal& g,
 }
 
 std::string rankedCsv(const SiteSelectionResult& res, const std::vector<Site>& sites) {
-    std::string csv = "rank,name,x,y,marginal_area_m2,cumulative_area_m2,cumulative_percent\n";
+    // With --weight the weights decide the ranking: they follow the areas (issue 12 item 14).
+    std::string csv = "rank,name,x,y,marginal_area_m2,cumulative_area_m2,cumulative_percent";
+    csv += res.weighted ? ",marginal_weight,cumulative_weight\n" : "\n";
     for (std::size_t k = 0; k < res.ranked.size(); ++k) {
         const SelectedSite& p = res.ranked[k];
         const Site& site = sites[p.candidate];
@@ -128,7 +130,12 @@ std::string rankedCsv(const SiteSelectionResult& res, const std::vector<Site>& s
                printfFinite("%.10g", site.x) + "," + printfFinite("%.10g", site.y) + "," +
                printfFinite("%.1f", p.marginal_area_m2) + "," +
                printfFinite("%.1f", p.cumulative_area_m2) + "," +
-               printfFinite("%.4f", p.cumulative_percent) + "\n";
+               printfFinite("%.4f", p.cumulative_percent);
+        if (res.weighted) {
+            csv += "," + printfFinite("%.10g", p.marginal_weight) + "," +
+                   printfFinite("%.10g", p.cumulative_weight);
+        }
+        csv += "\n";
     }
     return csv;
 }
@@ -216,11 +223,26 @@ std::string summaryTable(const RunContext& ctx, const Goal& g, const std::vector
                          const SiteSelectionResult& res) {
     TextTable t("Sites chosen from " + std::to_string(sites.size()) + " candidates on " +
                 ctx.dem.path);
-    t.setHeader({"rank", "site", "adds", "total", res.weighted ? "% of weight" : "% of area"});
+    if (res.weighted) {
+        // The weights decide the ranking: show them beside the areas.
+        t.setHeader({"rank", "site", "adds (weight)", "total (weight)", "% of weight",
+                     "adds (area)", "total (area)"});
+    } else {
+        t.setHeader({"rank", "site", "adds", "total", "% of area"});
+    }
     for (std::size_t k = 0; k < res.ranked.size(); ++k) {
         const SelectedSite& p = res.ranked[k];
-        t.addRow({std::to_string(k + 1), sites[p.candidate].name, formatArea(p.marginal_area_m2),
-                  formatArea(p.cumulative_area_m2), formatNumber(p.cumulative_percent, 2)});
+        std::vector<std::string> row = {std::to_string(k + 1), sites[p.candidate].name};
+        if (res.weighted) {
+            row.push_back(printfFinite("%.6g", p.marginal_weight));
+            row.push_back(printfFinite("%.6g", p.cumulative_weight));
+            row.push_back(formatNumber(p.cumulative_percent, 2));
+        }
+        row.push_back(formatArea(p.marginal_area_m2));
+        row.push_back(formatArea(p.cumulative_area_m2));
+        if (!res.weighted)
+            row.push_back(formatNumber(p.cumulative_percent, 2));
+        t.addRow(row);
     }
     TextTable foot("");
     foot.add("evaluated ground", formatArea(res.evaluated_area_m2) + " (" +
@@ -312,11 +334,12 @@ OptionTable SelectRun::declare() {
                            "Output")
                     .fileType()
                     .mandatory());
-    t.push_back(OptionDecl("--csv", &s.csv,
-                           "ranked CSV (rank,name,x,y,marginal_area_m2,cumulative_area_m2,"
-                           "cumulative_percent)",
-                           "Output")
-                    .fileType());
+    t.push_back(
+        OptionDecl("--csv", &s.csv,
+                   "ranked CSV (rank,name,x,y,marginal_area_m2,cumulative_area_m2,"
+                   "cumulative_percent; with --weight also marginal_weight,cumulative_weight)",
+                   "Output")
+            .fileType());
     t.push_back(OptionDecl("--polygons", &s.polygons,
                            "the chosen sites' coverage as polygons (areas seen by the same number "
                            "of chosen sites, with their true ground areas): .gpkg or .geojson",
@@ -347,16 +370,20 @@ void writeChosenVectors(RunContext& ctx, const SelectRunOptions& s, const Placed
     if (s.points.empty())
         return;
     using K = VectorField::Kind;
-    const VectorLayerSpec spec{s.points,
-                               "chosen_sites",
-                               ctx.dem.crs.wkt,
-                               {{"rank", K::Integer},
-                                {"name", K::Text},
-                                {"height_m", K::Real},
-                                {"marginal_area_m2", K::Real},
-                                {"cumulative_area_m2", K::Real},
-                                {"cumulative_percent", K::Real}},
-                               "lookfar select: the chosen sites in the order chosen"};
+    VectorLayerSpec spec{s.points,
+                         "chosen_sites",
+                         ctx.dem.crs.wkt,
+                         {{"rank", K::Integer},
+                          {"name", K::Text},
+                          {"height_m", K::Real},
+                          {"marginal_area_m2", K::Real},
+                          {"cumulative_area_m2", K::Real},
+                          {"cumulative_percent", K::Real}},
+                         "lookfar select: the chosen sites in the order chosen"};
+    if (res.weighted) {
+        spec.fields.push_back({"marginal_weight", K::Real});
+        spec.fields.push_back({"cumulative_weight", K::Real});
+    }
     std::vector<VectorFeature> features;
     for (std::size_t r = 0; r < res.ranked.size(); ++r) {
         const SelectedSite& c = res.ranked[r];
@@ -365,6 +392,10 @@ void writeChosenVectors(RunContext& ctx, const SelectRunOptions& s, const Placed
                             {static_cast<long long>(r + 1), placed.rows[c.candidate].name,
                              placed.observers[c.candidate].height_m, c.marginal_area_m2,
                              c.cumulative_area_m2, c.cumulative_percent}});
+        if (res.weighted) {
+            features.back().values.push_back(c.marginal_weight);
+            features.back().values.push_back(c.cumulative_weight);
+        }
     }
     ctx.outputs->adopt(writeVectorFeatures(spec, features), s.points);
 }

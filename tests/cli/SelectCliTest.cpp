@@ -139,6 +139,38 @@ TEST(SelectCliTest, WeightRasterSteersTheChoice) {
     const auto j = nlohmann::json::parse(r.out);
     EXPECT_EQ(j["selected"][0]["name"], "Tollan Rigg");
     EXPECT_NEAR(j["total_weight"].get<double>(), 3.0 * 121, 1e-6);
+
+    // Issue 12 item 14: where weights decide the ranking, the CSV and the table show them beside
+    // the areas; cumulative_percent is the cumulative weight over the total weight.
+    r = runLookfar({"select", testRaster("demo_coast.tif"), "--candidates",
+                    testRaster("demo_sites.csv"), "--count", "2", "--weight", dir.file("w.tif"),
+                    "-o", dir.file("c2.tif"), "--csv", dir.file("ranked.csv")});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.out.find("adds (weight)"), std::string::npos) << r.out;
+    EXPECT_NE(r.out.find("adds (area)"), std::string::npos) << r.out;
+    const std::string csv = readFile(dir.file("ranked.csv"));
+    EXPECT_EQ(firstLine(csv),
+              "rank,name,x,y,marginal_area_m2,cumulative_area_m2,"
+              "cumulative_percent,marginal_weight,cumulative_weight");
+    const std::string row1 = csv.substr(csv.find('\n') + 1);
+    std::vector<std::string> f;
+    std::string cell;
+    for (char ch : firstLine(row1)) {
+        if (ch == ',') {
+            f.push_back(cell);
+            cell.clear();
+        } else {
+            cell += ch;
+        }
+    }
+    f.push_back(cell);
+    ASSERT_EQ(f.size(), 9u) << row1;
+    EXPECT_EQ(f[1], "Tollan Rigg");
+    const double marginal = std::stod(f[7]), cumulative = std::stod(f[8]);
+    EXPECT_GT(marginal, 0.0);
+    EXPECT_LE(marginal, 3.0 * 121);
+    EXPECT_DOUBLE_EQ(marginal, cumulative);  // the first site adds all it sees
+    EXPECT_NEAR(std::stod(f[6]), 100.0 * cumulative / (3.0 * 121), 1e-4);
 }
 
 TEST(SelectCliTest, WeightRasterOnAnotherGridIsBadInput) {
