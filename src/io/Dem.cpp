@@ -108,11 +108,12 @@ Dem openAndDescribe(const std::string& path, const DemReadOptions& options, GDAL
     }
     if (gt[1] == 0.0 || gt[5] == 0.0)
         throw InputError(path + ": the DEM has a zero cell size");
-    if (gt[5] > 0.0) {
+    if (gt[5] > 0.0 && !options.allow_south_up) {
         throw InputError(path +
                          ": the DEM is stored south-up (positive row step); "
                          "warp it to a north-up grid first");
     }
+    dem.south_up = gt[5] > 0.0;
     dem.crs = crsOf(ds, path);
     GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
     int has_nodata = 0;

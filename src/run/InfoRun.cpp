@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 #include <limits>
+#include <utility>
 
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/io/Crs.hpp"
@@ -54,6 +55,7 @@ void readStatistics(const RunContext& ctx, bool approx, DemFigures& f) {
     read.band = o.band;
     if (!o.z_unit.empty())
         read.z_unit = ctx.dem.z_unit;
+    read.allow_south_up = true;
     if (approx) {
         const auto sizes = demOverviews(o.dem, read);
         read.overview = approxOverview(sizes);
@@ -89,6 +91,8 @@ void measureExtent(const RunContext& ctx, DemFigures& f) {
     const GridGeometry& g = dem.geometry;
     f.west = g.mapX(-0.5), f.east = g.mapX(g.width() - 0.5);
     f.north = g.mapY(-0.5), f.south = g.mapY(g.height() - 0.5);
+    if (dem.south_up)
+        std::swap(f.north, f.south);
     LonLatOf ll(dem.crs.wkt);
     // Lon/lat extent from the corners and edge midpoints (a projected extent is not a box in
     // lon/lat).
@@ -124,6 +128,7 @@ nlohmann::json demJson(const RunContext& ctx, const DemFigures& f) {
     d["cell_width_m"] = g.cellWidthM(g.height() / 2);
     d["cell_height_m"] = g.cellHeightM(g.height() / 2);
     d["pixel_size"] = {g.geotransform()[1], g.geotransform()[5]};
+    d["south_up"] = dem.south_up;
     d["extent"] = {{"west", f.west}, {"south", f.south}, {"east", f.east}, {"north", f.north}};
     d["extent_lonlat"] = {
         {"west", f.lon_min}, {"south", f.lat_min}, {"east", f.lon_max}, {"north", f.lat_max}};
@@ -169,6 +174,11 @@ std::string summaryTable(const RunContext& ctx, const DemFigures& f) {
     t.add("cell size", formatNumber(g.cellWidthM(g.height() / 2), 3) + " m × " +
                            formatNumber(g.cellHeightM(g.height() / 2), 3) + " m" +
                            (dem.crs.geographic ? " (at the middle row)" : ""));
+    if (dem.south_up) {
+        t.add("orientation",
+              "south-up (rows run northwards): the other commands refuse it; warp "
+              "it to a north-up grid first");
+    }
     t.add("extent (x)", fmtg(f.west) + " to " + fmtg(f.east));
     t.add("extent (y)", fmtg(f.south) + " to " + fmtg(f.north));
     t.add("longitude", fmt6(f.lon_min) + "° to " + fmt6(f.lon_max) + "°");
@@ -209,7 +219,7 @@ OptionTable InfoRun::declare() {
 
 RunReport InfoRun::run(const RunEnv& env) {
     // Validate and open: the DEM described, no cells (they are read strip by strip).
-    RunContext ctx = prepareRun(env, "info", options.common, {}, {}, DemCells::Later);
+    RunContext ctx = prepareRun(env, "info", options.common, {}, {}, DemCells::Describe);
     DemFigures f;
     readStatistics(ctx, options.approx, f);
     measureExtent(ctx, f);

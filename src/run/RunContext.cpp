@@ -128,6 +128,7 @@ RunContext prepareRun(const RunEnv& env, const std::string& command, const Commo
     DemReadOptions read;
     read.band = options.band;
     read.z_unit = c.z_unit;
+    read.allow_south_up = cells == DemCells::Describe;
     Dem probe = probeDem(options.dem, read);
     // ... then the outputs, before any long work (exit 4).
     ctx.inputs = {options.dem};

@@ -3,7 +3,11 @@
 
 #include <nlohmann/json.hpp>
 
+#include <gdal.h>
+#include <ogr_srs_api.h>
+
 #include <fstream>
+#include <vector>
 
 #include "../support/CliRunner.hpp"
 
@@ -73,6 +77,51 @@ TEST(BadInputCliTest, RotatedGeotransformIsRefused) {
     CliResult r = runLookfar({"info", testRaster("rotated.tif")});
     EXPECT_EQ(r.exit_code, 3);
     EXPECT_NE(firstLine(r.err).find("rotated"), std::string::npos) << r.err;
+}
+
+// Issue 12 item 16: info is the command for diagnosing a DEM, so it describes a south-up grid
+// (positive row step) instead of refusing it; the engines still refuse it with the hint. A 4 × 3
+// grid of 10 m cells whose first row is the southern one: the extent is 1000–1040 by 5000–5030
+// and the elevations 1 … 12 (mean 6.5), whatever the row order.
+TEST(InfoCliTest, DescribesASouthUpDemThatTheEnginesRefuse) {
+    ScratchDir dir;
+    const std::string path = dir.file("south_up.tif");
+    GDALAllRegister();
+    GDALDatasetH ds =
+        GDALCreate(GDALGetDriverByName("GTiff"), path.c_str(), 4, 3, 1, GDT_Float32, nullptr);
+    double gt[6] = {1000, 10, 0, 5000, 0, 10};
+    GDALSetGeoTransform(ds, gt);
+    OGRSpatialReferenceH srs = OSRNewSpatialReference(nullptr);
+    OSRImportFromEPSG(srs, 32630);
+    GDALSetSpatialRef(ds, srs);
+    OSRDestroySpatialReference(srs);
+    std::vector<float> z(12);
+    for (int i = 0; i < 12; ++i)
+        z[i] = static_cast<float>(i + 1);
+    ASSERT_EQ(GDALRasterIO(GDALGetRasterBand(ds, 1), GF_Write, 0, 0, 4, 3, z.data(), 4, 3,
+                           GDT_Float32, 0, 0),
+              CE_None);
+    GDALClose(ds);
+
+    CliResult r = runLookfar({"info", path, "--json"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto j = nlohmann::json::parse(r.out);
+    EXPECT_TRUE(j["dem"]["south_up"].get<bool>());
+    EXPECT_DOUBLE_EQ(j["dem"]["extent"]["south"].get<double>(), 5000.0);
+    EXPECT_DOUBLE_EQ(j["dem"]["extent"]["north"].get<double>(), 5030.0);
+    EXPECT_DOUBLE_EQ(j["dem"]["extent"]["west"].get<double>(), 1000.0);
+    EXPECT_DOUBLE_EQ(j["dem"]["extent"]["east"].get<double>(), 1040.0);
+    EXPECT_DOUBLE_EQ(j["dem"]["area_m2"].get<double>(), 1200.0);
+    EXPECT_DOUBLE_EQ(j["elevation_m"]["min"].get<double>(), 1.0);
+    EXPECT_DOUBLE_EQ(j["elevation_m"]["max"].get<double>(), 12.0);
+    EXPECT_DOUBLE_EQ(j["elevation_m"]["mean"].get<double>(), 6.5);
+    r = runLookfar({"info", path});
+    EXPECT_NE(r.out.find("south-up"), std::string::npos) << r.out;
+
+    r = runLookfar({"viewshed", path, "--observer", "1015,5015", "-o", dir.file("v.tif")});
+    EXPECT_EQ(r.exit_code, 3) << r.err;
+    EXPECT_NE(firstLine(r.err).find("south-up"), std::string::npos) << r.err;
+    EXPECT_NE(firstLine(r.err).find("north-up"), std::string::npos) << r.err;
 }
 
 TEST(BadInputCliTest, UnknownCrsStringIsAUsageError) {

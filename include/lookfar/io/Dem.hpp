@@ -32,6 +32,9 @@ struct DemReadOptions {
     /// readDemStrips only: read overview `overview` of the band (0 = the finest) instead of the
     /// cells, whole (the window must be all); −1 = the cells themselves.
     int overview = -1;
+    /// Describe a south-up grid (positive row step) instead of refusing it: info only; the
+    /// engines assume north-up rows.
+    bool allow_south_up = false;
 };
 
 struct Dem {
@@ -44,6 +47,7 @@ struct Dem {
     std::optional<double> nodata;         ///< the band's no-data value, in stored units
     int full_width = 0, full_height = 0;  ///< size of the whole raster
     std::string driver;                   ///< GDAL driver short name
+    bool south_up = false;  ///< rows run northwards (only with DemReadOptions::allow_south_up)
 };
 
 /// Opens `path` and reports size, CRS and geometry without reading cells.

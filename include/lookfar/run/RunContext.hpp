@@ -79,6 +79,8 @@ struct NamedPath {
 enum class DemCells {
     Whole,  ///< all of them, in prepareRun
     Later,  ///< none: the command places its observers, then calls readDemWindow
+    /// None, and a south-up DEM is described rather than refused (info reads its own strips).
+    Describe,
 };
 
 /// Validates the common options and the extension of every raster and vector output (exit 2 on
