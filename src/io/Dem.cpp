@@ -7,6 +7,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <limits>
 
 #include "GdalSupport.hpp"
@@ -115,6 +116,20 @@ Dem openAndDescribe(const std::string& path, const DemReadOptions& options, GDAL
     }
     dem.south_up = gt[5] > 0.0;
     dem.crs = crsOf(ds, path);
+    if (dem.crs.geographic) {
+        // Row centres past a pole are no place on Earth: refused here, once, for every command.
+        const double first = gt[3] + 0.5 * gt[5];
+        const double last = gt[3] + (dem.full_height - 0.5) * gt[5];
+        const double worst = std::fabs(first) > std::fabs(last) ? first : last;
+        if (std::fabs(worst) > 90.0) {
+            char buf[160];
+            std::snprintf(buf, sizeof buf,
+                          ": the DEM's rows reach latitude %.6g°, past the pole; a geographic "
+                          "DEM's row centres must lie within −90° to 90°",
+                          worst);
+            throw InputError(path + buf);
+        }
+    }
     GDALRasterBandH band = GDALGetRasterBand(ds, options.band);
     int has_nodata = 0;
     double nd = GDALGetRasterNoDataValue(band, &has_nodata);

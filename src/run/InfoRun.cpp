@@ -45,6 +45,7 @@ struct DemFigures {
     double lon_min = 1e9, lon_max = -1e9, lat_min = 1e9, lat_max = -1e9;
     double area_m2 = 0;
     std::string horizontal_unit, vertical_unit_source;
+    ImplausibleCells implausible;
 };
 
 /// Elevation statistics strip by strip, in the order of the cells (the same sums as over the
@@ -68,6 +69,8 @@ void readStatistics(const RunContext& ctx, bool approx, DemFigures& f) {
                    read.overview >= 0 ? f.overview_size.second : ctx.dem.geometry.height());
     readDemStrips(o.dem, read, 256, std::int64_t{64} << 20,
                   [&](int row0, const Grid<float>& strip) {
+                      for (int r = 0; r < strip.height(); ++r)
+                          f.implausible.scan(strip.row(r), strip.width(), 0, row0 + r);
                       for (float v : strip.cells()) {
                           if (std::isnan(v)) {
                               ++f.nodata_count;
@@ -83,6 +86,10 @@ void readStatistics(const RunContext& ctx, bool approx, DemFigures& f) {
                           throw Interrupted();
                   });
     progress.end();
+    if (f.implausible.count > 0) {
+        progress.warn(f.implausible.sentence(ctx.dem.path) +
+                      (f.overview >= 0 ? " (cells of the overview --approx read)" : ""));
+    }
 }
 
 /// Extent in map units and in lon/lat, area, units.
@@ -158,7 +165,8 @@ nlohmann::json summaryJson(const RunContext& ctx, const DemFigures& f, bool appr
     j["elevation_m"] = {{"min", any ? finiteOrNull(f.zmin) : nullptr},
                         {"max", any ? finiteOrNull(f.zmax) : nullptr},
                         {"mean", any ? finiteOrNull(f.sum / f.valid) : nullptr},
-                        {"cells_with_data", f.valid}};
+                        {"cells_with_data", f.valid},
+                        {"implausible_cells", f.implausible.count}};
     return j;
 }
 

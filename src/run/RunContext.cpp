@@ -136,6 +136,13 @@ RunContext prepareRun(const RunEnv& env, const std::string& command, const Commo
     checkOutputs(options, outputs, ctx.inputs);
     ctx.dem = std::move(probe);
     ctx.grid = ctx.dem.geometry;
+    if (!ctx.dem.crs.geographic && !ctx.dem.z_unit_from_band && options.z_unit.empty() &&
+        std::fabs(ctx.dem.crs.horizontal_unit.metres - 1.0) > 0.01) {
+        // Elevations in the CRS's feet would be read as metres: 3.28 times too high.
+        ctx.progress->warn(options.dem + ": the CRS is in " + ctx.dem.crs.horizontal_unit.name +
+                           " and the band gives no vertical unit: its elevations are read as "
+                           "metres; give --z-unit ft or us-ft if they are feet");
+    }
     ctx.window = {0, 0, ctx.grid.width(), ctx.grid.height()};
     if (cells == DemCells::Whole)
         readDemWindow(ctx, ctx.window);
@@ -164,6 +171,39 @@ CellWindow workWindow(const RunContext& ctx, const std::vector<Observer>& observ
     return {c0, r0, c1 - c0 + 1, r1 - r0 + 1};
 }
 
+namespace {
+
+/// Says on stderr how many cells of the window read hold implausible elevations, and the first.
+void warnImplausibleElevations(const RunContext& ctx) {
+    const Grid<float>& z = ctx.dem.z;
+    ImplausibleCells bad;
+    for (int r = 0; r < z.height(); ++r)
+        bad.scan(z.row(r), z.width(), ctx.window.col0, ctx.window.row0 + r);
+    if (bad.count > 0)
+        ctx.progress->warn(bad.sentence(ctx.dem.path));
+}
+
+}  // namespace
+
+void ImplausibleCells::scan(const float* row, int width, int col0, int row_index) {
+    for (int c = 0; c < width; ++c) {
+        const float v = row[c];
+        if (v < kLowestPlausibleM || v > kHighestPlausibleM) {  // NaN (no data) is neither
+            if (count++ == 0)
+                first = v, col = col0 + c, this->row = row_index;
+        }
+    }
+}
+
+std::string ImplausibleCells::sentence(const std::string& dem_path) const {
+    char buf[200];
+    std::snprintf(buf, sizeof buf,
+                  ": %lld cells hold elevations outside −12 km to +9 km (the first %g m at column "
+                  "%d, row %d); check the DEM's no-data value and --z-unit",
+                  static_cast<long long>(count), static_cast<double>(first), col, row);
+    return dem_path + buf;
+}
+
 void readDemWindow(RunContext& ctx, const CellWindow& window) {
     DemReadOptions read;
     read.band = ctx.options.band;
@@ -175,6 +215,7 @@ void readDemWindow(RunContext& ctx, const CellWindow& window) {
     read.win_height = window.height;
     ctx.dem = readDem(ctx.options.dem, read);
     ctx.window = window;
+    warnImplausibleElevations(ctx);
     if (!ctx.options.extent.empty()) {
         ctx.run.extra["EXTENT"] = ctx.options.extent;
         ctx.run.extra["WINDOW"] = std::to_string(window.col0) + "," + std::to_string(window.row0) +
@@ -269,12 +310,21 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
             }
         }
         if (!g.containsMap(p.x, p.y)) {
+            // The extent is half-open: a point on the east or south edge belongs to no cell.
             char buf[256];
             std::snprintf(buf, sizeof buf,
-                          " %.10g,%.10g is outside the DEM %s (x %.10g to %.10g, y %.10g to %.10g)",
+                          " %.10g,%.10g is outside the DEM %s (it holds %.10g ≤ x < %.10g and "
+                          "%.10g < y ≤ %.10g)",
                           x, y, ctx.dem.path.c_str(), g.mapX(-0.5), g.mapX(g.width() - 0.5),
                           g.mapY(g.height() - 0.5), g.mapY(-0.5));
-            throw InputError(what[i] + buf);
+            std::string hint;
+            if (ctx.options.crs.empty() && !ctx.dem.crs.geographic && std::fabs(x) <= 180 &&
+                std::fabs(y) <= 90) {
+                hint =
+                    "; the values look like longitude,latitude: if they are, give --crs "
+                    "EPSG:4326";
+            }
+            throw InputError(what[i] + buf + hint);
         }
         Observer o;
         o.name = names[i];

@@ -79,6 +79,80 @@ TEST(BadInputCliTest, RotatedGeotransformIsRefused) {
     EXPECT_NE(firstLine(r.err).find("rotated"), std::string::npos) << r.err;
 }
 
+namespace {
+/// A Float32 GeoTIFF of w × h cells of 10 m in `epsg`, no band unit type.
+void writeGrid(const std::string& path, int w, int h, int epsg, const std::vector<float>& z,
+               double x0 = 1000, double y0 = 5000) {
+    GDALAllRegister();
+    GDALDatasetH ds =
+        GDALCreate(GDALGetDriverByName("GTiff"), path.c_str(), w, h, 1, GDT_Float32, nullptr);
+    double gt[6] = {x0, 10, 0, y0, 0, -10};
+    GDALSetGeoTransform(ds, gt);
+    OGRSpatialReferenceH srs = OSRNewSpatialReference(nullptr);
+    OSRImportFromEPSG(srs, epsg);
+    GDALSetSpatialRef(ds, srs);
+    OSRDestroySpatialReference(srs);
+    ASSERT_EQ(GDALRasterIO(GDALGetRasterBand(ds, 1), GF_Write, 0, 0, w, h,
+                           const_cast<float*>(z.data()), w, h, GDT_Float32, 0, 0),
+              CE_None);
+    GDALClose(ds);
+}
+}  // namespace
+
+// Issue 12 item 17d: elevations no Earth holds (an undeclared no-data value of 1e30 here) go
+// through, but with one warning naming the count and the first cell; and a CRS in feet with no
+// vertical unit on the band says the elevations are read as metres. Both are warnings: exit 0.
+TEST(InfoCliTest, ImplausibleElevationsAndFeetWithoutAVerticalUnitAreSaid) {
+    ScratchDir dir;
+    std::vector<float> z(20 * 10, 50.0f);
+    z[3 * 20 + 7] = 1e30f;  // column 7, row 3
+    z[5 * 20 + 2] = 1e30f;
+    z[9 * 20 + 19] = -20000.0f;
+    writeGrid(dir.file("bad.tif"), 20, 10, 32630, z);
+    CliResult r = runLookfar({"info", dir.file("bad.tif"), "--json"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_EQ(nlohmann::json::parse(r.out)["elevation_m"]["implausible_cells"], 3);
+    EXPECT_NE(r.err.find("3 cells hold elevations outside −12 km to +9 km (the first 1e+30 m at "
+                         "column 7, row 3)"),
+              std::string::npos)
+        << r.err;
+    r = runLookfar({"viewshed", dir.file("bad.tif"), "--observer", "1005,4995", "-o",
+                    dir.file("v.tif"), "--quiet"});
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.err.find("3 cells hold elevations outside"), std::string::npos) << r.err;
+
+    // EPSG:2227 (California zone 3, US survey feet), no unit type on the band.
+    writeGrid(dir.file("feet.tif"), 20, 10, 2227, std::vector<float>(200, 100.0f), 6000000,
+              2000000);
+    r = runLookfar({"info", dir.file("feet.tif"), "--quiet"});
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.err.find("band gives no vertical unit: its elevations are read as metres"),
+              std::string::npos)
+        << r.err;
+    r = runLookfar({"info", dir.file("feet.tif"), "--quiet", "--z-unit", "us-ft"});
+    EXPECT_EQ(r.err.find("vertical unit"), std::string::npos) << r.err;
+    r = runLookfar({"info", testRaster("demo_coast.tif"), "--quiet"});
+    EXPECT_EQ(r.err, "");  // metres, plausible: nothing said
+}
+
+// Issue 12 item 17c: a geographic DEM whose rows reach past a pole was accepted by some commands
+// and refused by others in other words; every command now refuses it as bad input (exit 3). Here
+// 10° cells from latitude 100° down: row centres 95° and 85°.
+TEST(InfoCliTest, GeographicRowsPastThePoleAreBadInputForEveryCommand) {
+    ScratchDir dir;
+    writeGrid(dir.file("pole.tif"), 3, 2, 4326, std::vector<float>(6, 10.0f), 0, 100);
+    for (const std::vector<std::string>& args :
+         {std::vector<std::string>{"info", dir.file("pole.tif")},
+          {"viewshed", dir.file("pole.tif"), "--observer", "5,85", "-o", dir.file("v.tif")},
+          {"horizon", dir.file("pole.tif"), "--at", "5,85"}}) {
+        const CliResult r = runLookfar(args);
+        EXPECT_EQ(r.exit_code, 3) << args[0] << ": " << r.err;
+        EXPECT_NE(firstLine(r.err).find("reach latitude 95°, past the pole"), std::string::npos)
+            << r.err;
+    }
+    EXPECT_EQ(dir.entries().size(), 1u);  // the DEM alone
+}
+
 // Issue 12 item 16: info is the command for diagnosing a DEM, so it describes a south-up grid
 // (positive row step) instead of refusing it; the engines still refuse it with the hint. A 4 × 3
 // grid of 10 m cells whose first row is the southern one: the extent is 1000–1040 by 5000–5030

@@ -187,6 +187,32 @@ TEST(LinkCliTest, EndOutsideTheDemIsBadInputAndWritesNothing) {
     EXPECT_TRUE(dir.entries().empty());
 }
 
+// Issue 12 item 10: the extent in the message is half-open, as the cells are (demo_coast.tif:
+// x 420000 to 432500, y 5590000 to 5600000, 25 m cells), so a point on the east edge is plainly
+// outside; and lon/lat values given without --crs get the hint that --crs EPSG:4326 may be meant.
+TEST(LinkCliTest, OutsideTheDemStatesTheHalfOpenExtentAndHintsAtLonLat) {
+    ScratchDir dir;
+    CliResult r = runLookfar({"link", testRaster("demo_coast.tif"), "--from", "422937.5,5598337.5",
+                              "--to", "432500,5595000", "--quiet"});
+    EXPECT_EQ(r.exit_code, 3) << r.err;
+    EXPECT_NE(firstLine(r.err).find("(it holds 420000 ≤ x < 432500 and 5590000 < y ≤ 5600000)"),
+              std::string::npos)
+        << r.err;
+    EXPECT_EQ(firstLine(r.err).find("longitude"), std::string::npos) << r.err;
+    r = runLookfar({"link", testRaster("demo_coast.tif"), "--from", "-3.95,50.52", "--to",
+                    "422937.5,5598337.5", "--quiet"});
+    EXPECT_EQ(r.exit_code, 3) << r.err;
+    EXPECT_NE(firstLine(r.err).find("--from -3.95,50.52 is outside the DEM"), std::string::npos)
+        << r.err;
+    EXPECT_NE(firstLine(r.err).find("look like longitude,latitude"), std::string::npos) << r.err;
+    EXPECT_NE(firstLine(r.err).find("--crs EPSG:4326"), std::string::npos) << r.err;
+    // With --crs given, no hint: the values were read as the user said.
+    r = runLookfar({"link", testRaster("demo_coast.tif"), "--from", "-9.95,50.52", "--to",
+                    "-9.9,50.5", "--crs", "EPSG:4326", "--quiet"});
+    EXPECT_EQ(r.exit_code, 3) << r.err;
+    EXPECT_EQ(firstLine(r.err).find("longitude"), std::string::npos) << r.err;
+}
+
 TEST(LinkCliTest, EndOnNoDataIsBadInputAndWritesNothing) {
     ScratchDir dir;
     // nodata_hole.tif: rows and columns 45–54 hold no data (x 430455–430545).

@@ -75,6 +75,20 @@ struct NamedPath {
     OutputKind kind = OutputKind::Any;
 };
 
+/// Cells whose elevations lie outside what the Earth holds (the deepest trench to above the
+/// highest summit, after conversion to metres): a no-data value the file does not declare, or a
+/// wrong unit. Commands say so on stderr and go on (issue 12 item 17d).
+struct ImplausibleCells {
+    static constexpr float kLowestPlausibleM = -12000.0f, kHighestPlausibleM = 9000.0f;
+    std::int64_t count = 0;
+    float first = 0;         ///< the first such elevation, metres
+    int col = -1, row = -1;  ///< its cell in the whole DEM
+    /// Counts the implausible cells of `width` elevations, the first at (col0, row_index).
+    void scan(const float* row, int width, int col0, int row_index);
+    /// The warning: "DEM: N cells hold elevations outside −12 km to +9 km (the first …)".
+    std::string sentence(const std::string& dem_path) const;
+};
+
 /// When prepareRun reads the DEM's cells.
 enum class DemCells {
     Whole,  ///< all of them, in prepareRun
