@@ -11,6 +11,7 @@
 #include "lookfar/core/FractalTerrain.hpp"
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
+#include "lookfar/core/MemorySize.hpp"
 #include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Progress.hpp"
 #include "lookfar/core/Text.hpp"
@@ -31,6 +32,7 @@
 #include "lookfar/horizon/AsyncSink.hpp"
 #include "lookfar/horizon/HorizonProfile.hpp"
 #include "lookfar/horizon/HorizonScan.hpp"
+#include "lookfar/horizon/HorizonTiling.hpp"
 
 // link
 #include "lookfar/link/Intervisibility.hpp"

@@ -14,7 +14,18 @@ GridGeometry::GridGeometry(int width, int height, const std::array<double, 6>& g
       window_gt_(geotransform),
       geographic_(geographic),
       unit_m_(linear_unit_m),
-      ellipsoid_(ellipsoid) {}
+      ellipsoid_(ellipsoid),
+      whole_width_(width),
+      whole_height_(height) {}
+
+GridGeometry GridGeometry::whole() const {
+    GridGeometry w = *this;
+    w.width_ = whole_width_;
+    w.height_ = whole_height_;
+    w.col_off_ = w.row_off_ = 0;
+    w.window_gt_ = gt_;
+    return w;
+}
 
 GridGeometry GridGeometry::window(int col0, int row0, int width, int height) const {
     GridGeometry w = *this;

@@ -27,10 +27,10 @@ void FarRefiner::exactGeographic(Eye& e, int t0, int t1, double s0, double s1) c
     const bool mc = d_.major_cols;
     const float* dem = dem_;
     const std::size_t w = static_cast<std::size_t>(w_);
-    const GridMetric& metric = in_.metric;
+    const GridMetric& metric = in_.whole_metric;  // cells of the whole grid
     const Curvature cv = in_.curvature;
     const double reach = reach_, ze = e.ze;
-    const double col0 = e.col, row0 = e.row;
+    const double col0 = e.col + in_.geometry.colOffset(), row0 = e.row + in_.geometry.rowOffset();
     double bt = e.t, bd = e.dist;
     // The sample (da, dp) major and minor cells from the cell, terrain z: false once beyond
     // reach.

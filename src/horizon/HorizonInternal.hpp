@@ -164,9 +164,13 @@ class SummaryAccumulator {
 };
 
 struct EngineInput {
-    const Grid<float>& dem;
+    const Grid<float>& dem;  ///< the cells of `geometry`, which may be a window of a whole grid
     const GridGeometry& geometry;
-    const GridMetric& metric;
+    const GridMetric& metric;  ///< of `geometry` (rows and columns of the whole grid)
+    /// Of the whole grid (= metric when the grid is whole): the fast engine lays its scan lines
+    /// out on the whole grid, so that a window gives the same bits as the whole grid for every
+    /// cell whose samples within reach lie in the window.
+    const GridMetric& whole_metric;
     const Curvature& curvature;
     const HorizonOptions& options;
 };

@@ -199,12 +199,17 @@ HorizonScan::HorizonScan(const Grid<float>& dem, const GridGeometry& geometry,
         throw InputError("the elevation grid and its geometry differ in size");
     }
     metric_ = std::make_shared<const horizon_detail::GridMetric>(geometry_);
+    const bool window = geometry_.colOffset() != 0 || geometry_.rowOffset() != 0 ||
+                        geometry_.wholeWidth() != geometry_.width() ||
+                        geometry_.wholeHeight() != geometry_.height();
+    whole_metric_ =
+        window ? std::make_shared<const horizon_detail::GridMetric>(geometry_.whole()) : metric_;
     curvature_ = earth_.curvatureAt(options_.latitude_deg);
 }
 
 HorizonSummary HorizonScan::run(HorizonSink& sink, Progress& progress) const {
     using namespace horizon_detail;
-    EngineInput in{dem_, geometry_, *metric_, curvature_, options_};
+    EngineInput in{dem_, geometry_, *metric_, *whole_metric_, curvature_, options_};
     SummaryAccumulator acc(dem_.width(), dem_.height(), options_.directions, options_.want_svf,
                            options_.want_dip);
     if (options_.method == HorizonMethod::Reference) {

@@ -15,15 +15,16 @@ void TileWorker::finish(float* buf, int c0, int r0, int tw, int th, TileScratch&
 
 // The near field of row r on a geographic grid: the cell aspect and the metric of its row.
 const NearField& TileWorker::geographicNear(int r, TileScratch& ts) const {
-    const GridMetric& metric = in_.metric;
+    const GridMetric& metric = in_.whole_metric;  // rows of the whole grid
     const Curvature& curv = in_.curvature;
     const bool mc = d_.major_cols;
     const int steps = std::min(k_exact_, d_.A);
+    const int r_all = r + in_.geometry.rowOffset();
     buildCrossings(
         d_, d_.m_row[r], steps, w_,
         [&](double pa, double pp, double, double& dist, double& drop) {
             double east, north;
-            metric.offsets(0, r, mc ? pa : pp, r + (mc ? pp : pa), east, north);
+            metric.offsets(0, r_all, mc ? pa : pp, r_all + (mc ? pp : pa), east, north);
             dist = groundDistance(east, north);
             drop = curv.drop(east, north);
         },

@@ -8,11 +8,20 @@ void LineWorker::run(long j0, long j_last, Scratch& sc) const {
     for (int i = 0; i < kGroupLines; ++i) {
         LineBuf& L = sc.lines[i];
         L.j = j0 + i;
-        if (L.j > j_last || !validRange(L.j, L.a_lo, L.a_hi)) {
+        if (L.j > j_last || !lineRange(d_, L.j, false, L.a_lo, L.a_hi)) {
             L.a_lo = 0, L.a_hi = -1, L.n = 0;
             continue;
         }
         L.n = L.a_hi - L.a_lo + 1;
+        L.kb = 0;
+        L.a_far_all = d_.sign > 0 ? L.a_hi : L.a_lo;
+        if (window_) {
+            // The whole grid's line: where it starts, beyond this grid's edge.
+            int lo_all, hi_all;
+            lineRange(d_, L.j + d_.p_off, true, lo_all, hi_all);
+            L.a_far_all = d_.sign > 0 ? hi_all : lo_all;
+            L.kb = d_.sign > 0 ? hi_all - (L.a_hi + d_.a_off) : (L.a_lo + d_.a_off) - lo_all;
+        }
         u_lo = std::min(u_lo, L.a_lo);
         u_hi = std::max(u_hi, L.a_hi);
     }
@@ -22,38 +31,6 @@ void LineWorker::run(long j0, long j_last, Scratch& sc) const {
     for (int i = 0; i < kGroupLines; ++i)
         sweep(sc.lines[i], sc);
     record(sc);
-}
-
-// Major indices where line j has a sample: minor position j + x_a − g_a inside [0, B − 1].
-bool LineWorker::validRange(long j, int& a_lo, int& a_hi) const {
-    const int A = d_.A;
-    auto geZero = [&](int a) {
-        long q = j + d_.xi[a];
-        return q >= 1 || (q == 0 && d_.gx[a] == 0.0);
-    };
-    auto leMax = [&](int a) { return j + d_.xi[a] <= d_.B - 1; };
-    auto flip = [&](auto pred, bool from) {  // first index where pred is no longer `from`
-        int lo = 0, hi = A;
-        while (lo < hi) {
-            int mid = (lo + hi) >> 1;
-            if (pred(mid) == from)
-                lo = mid + 1;
-            else
-                hi = mid;
-        }
-        return lo;
-    };
-    if (d_.m == 0) {
-        bool ok = geZero(0) && leMax(0);
-        a_lo = 0, a_hi = ok ? A - 1 : -1;
-    } else if (d_.m > 0) {
-        a_lo = flip(geZero, false);
-        a_hi = flip(leMax, true) - 1;
-    } else {
-        a_lo = flip(leMax, false);
-        a_hi = flip(geZero, true) - 1;
-    }
-    return a_lo <= a_hi;
 }
 
 // Samples of every line of the group, major index by major index (neighbouring lines read
@@ -112,17 +89,25 @@ void LineWorker::gather(Scratch& sc, int u_lo, int u_hi) const {
     for (int i = 0; i < kGroupLines; ++i) {
         LineBuf& L = sc.lines[i];
         if (d_.geographic) {
-            const int a_far = sign > 0 ? L.a_hi : L.a_lo;
+            // s counts from the whole grid's line's far end, step by step in the same order.
+            const long j_all = L.j + d_.p_off;
             double s = 0;
+            for (int k = 1; k <= L.kb; ++k) {
+                const int a = L.a_far_all - sign * k;
+                s -= d_.step_table[d_.major_cols ? static_cast<int>(j_all + d_.xi_all[a]) : a];
+            }
+            const int a_far = sign > 0 ? L.a_hi : L.a_lo;
             for (int k = 0; k < L.n; ++k) {
                 const int a = a_far - sign * k;
-                if (k > 0)
-                    s -= d_.step_table[d_.major_cols ? static_cast<int>(L.j + d_.xi[a]) : a];
+                if (k > 0) {
+                    s -= d_.step_table[d_.major_cols ? static_cast<int>(j_all + d_.xi[a])
+                                                     : a + d_.a_off];
+                }
                 L.S[k] = s;
                 L.Z[k] -= d_.c * s * s;
             }
         } else {
-            const double* fold = d_.fold.data();
+            const double* fold = d_.fold.data() + L.kb;
             double* z = L.Z;
             for (int k = 0; k < L.n; ++k)
                 z[k] -= fold[k];
@@ -186,10 +171,11 @@ void LineWorker::sweepT(LineBuf& L, Scratch& sc) const {
         if (!has_u && !has_d)
             continue;
         const double sE = pos(k);
-        const double fold = kGeo ? d_.c * sE * sE : d_.fold[k];
+        const int k_all = k + L.kb;  // in the whole grid's line
+        const double fold = kGeo ? d_.c * sE * sE : d_.fold[k_all];
         // The tangent point from the eye of ground g, and the tangent of the line's horizon
         // seen from that eye, (Z_P − Z_E)/(s_P − s_E) + 2c s_E (in metres).
-        const double tilt = 2 * c * (kGeo ? sE : -k * step);
+        const double tilt = 2 * c * (kGeo ? sE : -k_all * step);
         const int a = sign > 0 ? L.a_hi - k : L.a_lo + k;
         const int q = static_cast<int>(L.j + xi[a]);
         // side 0: the cell on the line's upper side (minor q), 1: the lower one (q − 1).

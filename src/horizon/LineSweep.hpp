@@ -15,6 +15,10 @@ namespace lookfar::horizon_detail::fast {
 struct LineBuf {
     long j = 0;
     int a_lo = 0, a_hi = -1, n = 0;
+    // Samples of the whole grid's line before this one's far end (0 unless the grid is a window)
+    // and the whole line's far end (major index of the whole grid): folds and coordinates count
+    // from there.
+    int kb = 0, a_far_all = 0;
     double* Z = nullptr;     // folded heights (NaN = no data); raw heights until folded
     double* S = nullptr;     // geographic: coordinate along the line, metres
     float* g_up = nullptr;   // ground of the cell on the line's upper side (minor q) if the line
@@ -62,15 +66,13 @@ class LineWorker {
           eye_h_(in.options.observer_height_m),
           reach_(in.options.reach_m),
           limited_(std::isfinite(in.options.reach_m)),
-          k_exact_(in.options.exact_steps) {}
+          k_exact_(in.options.exact_steps),
+          window_(d.A != d.A_all || d.B != d.B_all) {}
 
     /// The lines j0 … j0 + kGroupLines − 1.
     void run(long j0, long j_last, Scratch& sc) const;
 
   private:
-    // Major indices where line j has a sample: minor position j + x_a − g_a inside [0, B − 1].
-    bool validRange(long j, int& a_lo, int& a_hi) const;
-
     // Samples of every line of the group, major index by major index (neighbouring lines read
     // neighbouring cells, so the DEM is read in cache-friendly runs whatever the direction), and
     // the grounds of the cells each line answers for: the nearer line of the two around a cell,
@@ -96,6 +98,7 @@ class LineWorker {
     double reach_;
     bool limited_;
     int k_exact_;
+    bool window_;  // the grid is a window of a whole grid
 };
 
 }  // namespace lookfar::horizon_detail::fast

@@ -13,15 +13,23 @@ struct Direction {
     double azimuth_deg = 0, sin_a = 0, cos_a = 1;
     bool major_cols = true;
     int A = 0, B = 0;  // extents along the major and minor axes
-    int sign = 1;      // +1: the horizon lies towards increasing major index
-    double m = 0;      // minor per major step of the lines
-    double c = 0;      // curvature coefficient along α, 1/m
-    std::vector<int> xi;
-    std::vector<double> gx;
+    // When the grid is a window of a whole grid: its offsets along the major and minor axes and
+    // the whole grid's extents. Line j of the window is line j + p_off of the whole grid; its
+    // folds and coordinates s count from that whole line's far end (so a window gives the same
+    // bits as the whole grid).
+    int a_off = 0, p_off = 0, A_all = 0, B_all = 0;
+    std::vector<int> xi_all;     // x_a of the whole grid, by major index of the whole grid
+    std::vector<double> gx_all;  // g_a likewise
+    int sign = 1;                // +1: the horizon lies towards increasing major index
+    double m = 0;                // minor per major step of the lines
+    double c = 0;                // curvature coefficient along α, 1/m
+    std::vector<int> xi;         // x_a by major index of the grid (= xi_all[a + a_off])
+    std::vector<double> gx;      // g_a likewise
     bool geographic = false;
     double step_m = 0;               // projected: metres per major step
-    std::vector<double> fold;        // projected: c s² at s = −k · step, by k
-    std::vector<double> step_table;  // geographic: metres per major step of the lines, by row
+    std::vector<double> fold;        // projected: c s² at s = −k · step, by k (0 … A_all)
+    std::vector<double> step_table;  // geographic: metres per major step of the lines, by row of
+                                     // the whole grid
     std::vector<double> m_row;       // geographic: minor per major step of a cell's own ray, by row
     long jmin = 0, jmax = -1;
     // Projected grids: every crossing of a cell's ray, sorted by distance; major_pos[t] is where
@@ -86,5 +94,9 @@ void buildCrossings(const Direction& d, double m, int steps, int w, Metres metre
 /// Fills `d` for direction `index`, reusing its vectors (no allocation after the first
 /// directions, so memory does not creep up with N).
 void setUp(const EngineInput& in, int index, Direction& d);
+
+/// Major indices where line j (of the grid, or of the whole grid when `whole`) has a sample:
+/// minor position j + x_a − g_a inside [0, B − 1]. False when it has none.
+bool lineRange(const Direction& d, long j, bool whole, int& a_lo, int& a_hi);
 
 }  // namespace lookfar::horizon_detail::fast

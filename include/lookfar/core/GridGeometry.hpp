@@ -51,6 +51,11 @@ class GridGeometry {
     /// Offset of this grid's cells in the grid it is a window of (0 for a whole grid).
     int colOffset() const { return col_off_; }
     int rowOffset() const { return row_off_; }
+    /// Size of the grid this one is a window of (its own size for a whole grid).
+    int wholeWidth() const { return whole_width_; }
+    int wholeHeight() const { return whole_height_; }
+    /// The whole grid this one is a window of (itself for a whole grid).
+    GridGeometry whole() const;
     bool geographic() const { return geographic_; }
     /// GDAL's geotransform of this grid (of the window when it is one).
     const std::array<double, 6>& geotransform() const { return window_gt_; }
@@ -95,6 +100,7 @@ class GridGeometry {
     bool geographic_ = false;
     double unit_m_ = 1.0;
     Ellipsoid ellipsoid_;
+    int whole_width_ = 0, whole_height_ = 0;  ///< of the whole grid
 };
 
 }  // namespace lookfar

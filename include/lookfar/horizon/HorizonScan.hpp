@@ -133,7 +133,8 @@ class HorizonScan {
     GridGeometry geometry_;
     EarthModel earth_;
     HorizonOptions options_;
-    std::shared_ptr<const horizon_detail::GridMetric> metric_;  // built once
+    std::shared_ptr<const horizon_detail::GridMetric> metric_;        // built once
+    std::shared_ptr<const horizon_detail::GridMetric> whole_metric_;  // of the whole grid
     Curvature curvature_;
 };
 
