@@ -10,9 +10,12 @@
 //   - the same viewshed on a GeoTIFF cut from the mosaic to the window that run read (the
 //     "cropped DEM"), and the check that both see the same cells.
 //   - `lookfar info MOSAIC`, which reads every cell strip by strip.
+//   - `lookfar horizon MOSAIC16 --directions 16 --reach 2km --svf s.tif --memory 512M` over a
+//     VRT of 4 × 4 copies of the tile (16384²), worked tile by tile, against the same command on
+//     the 4096² tile alone, held in memory: cell-directions per second and peak memory.
 // Targets (2-core machine): the mosaic viewshed within 2× the cropped one, under 300 MiB; info
-// under 300 MiB. Not measured yet (issue 13 items 3–4 are not built): the tiled horizon.
-// --quick: a 1024² tile, a 4 × 4 mosaic, 2 km reach, 1 run each.
+// under 300 MiB; the tiled horizon under 640 MiB and at least 70 % of the in-memory rate.
+// --quick: a 1024² tile, a 4 × 4 mosaic, 2 km reach, 1 run each; the horizon with --memory 64M.
 #include <cstdio>
 #include <fstream>
 #include <stdexcept>
@@ -195,7 +198,49 @@ nlohmann::json benchScale(const BenchArgs& args) {
     j["target_info_peak_mib"] = 300.0;
     j["targets_met"] = !args.quick && same && ratio <= 2.0 && on_mosaic.peak / kMiB < 300.0 &&
                        info.peak_rss_bytes / kMiB < 300.0;
-    j["tiled_horizon"] = "not measured: issue 13 items 3-4 (tiles, --memory) are not built";
+    // The tiled horizon, against the in-memory rate on one tile.
+    const std::string mosaic4 = args.work_dir + "/scale-mosaic-4x4.vrt";
+    writeMosaicVrt(mosaic4, tile_name, tile, 4, cell_m);
+    const std::string memory = args.quick ? "64M" : "512M";
+    auto horizon = [&](const std::string& dem, const std::string& tag,
+                       const std::vector<std::string>& extra) {
+        const std::string out = args.work_dir + "/scale-out-" + tag + ".tif";
+        const std::string summary = args.work_dir + "/scale-out-" + tag + ".json";
+        std::vector<std::string> argv = {
+            args.cli_path, "horizon", dem,         "--directions", "16",          "--reach", "2km",
+            "--svf",       out,       "--summary", summary,        "--overwrite", "--quiet"};
+        argv.insert(argv.end(), extra.begin(), extra.end());
+        const ChildRun c = runChild(argv);
+        if (c.exit_code != 0)
+            throw std::runtime_error("lookfar horizon (" + tag + ") failed with exit code " +
+                                     std::to_string(c.exit_code));
+        const nlohmann::json s = nlohmann::json::parse(std::ifstream(summary));
+        std::remove(out.c_str());
+        const GridGeometry g = probeDem(dem).geometry;
+        const double cell_dirs = 16.0 * g.width() * g.height();
+        return nlohmann::json{{"cells", {g.width(), g.height()}},
+                              {"wall_s", c.wall_s},
+                              {"cell_directions_per_s", cell_dirs / c.wall_s},
+                              {"peak_rss_bytes", c.peak_rss_bytes},
+                              {"peak_rss_mib", c.peak_rss_bytes / kMiB},
+                              {"tiles", s["horizon"].value("tiles", nlohmann::json())}};
+    };
+    const nlohmann::json in_memory = horizon(tile_path, "horizon-tile", {});
+    const nlohmann::json tiled = horizon(mosaic4, "horizon-mosaic", {"--memory", memory});
+    const double rate_ratio = tiled["cell_directions_per_s"].get<double>() /
+                              in_memory["cell_directions_per_s"].get<double>();
+    j["tiled_horizon"] = {{"command",
+                           "lookfar horizon MOSAIC --directions 16 --reach 2km --svf "
+                           "FILE --memory " +
+                               memory},
+                          {"memory", memory},
+                          {"in_memory_one_tile", in_memory},
+                          {"tiled_mosaic", tiled},
+                          {"rate_over_in_memory", rate_ratio},
+                          {"target_rate_ratio", 0.7},
+                          {"target_peak_mib", 640.0}};
+    j["targets_met"] = j["targets_met"].get<bool>() && rate_ratio >= 0.7 &&
+                       tiled["peak_rss_mib"].get<double>() < 640.0;
     j["quick"] = args.quick;
     j["load_average_1min_before"] = load_before;
     std::remove(cropped.c_str());

@@ -11,11 +11,17 @@
 #include <string>
 #include <vector>
 
+#ifdef _OPENMP
+#include <omp.h>
+#endif
+
 #include "Commands.hpp"
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/MemorySize.hpp"
 #include "lookfar/horizon/HorizonProfile.hpp"
 #include "lookfar/horizon/AsyncSink.hpp"
 #include "lookfar/horizon/HorizonScan.hpp"
+#include "lookfar/horizon/HorizonTiling.hpp"
 #include "lookfar/io/SitesCsv.hpp"
 #include "lookfar/report/SvgPlot.hpp"
 #include "lookfar/report/TextTable.hpp"
@@ -108,36 +114,56 @@ class RasterSink final : public HorizonSink {
     std::size_t written_ = 0;
 };
 
-/// Mean, smallest and largest of a grid's cells with data.
-struct GridStats {
-    std::int64_t cells = 0;
-    double mean = std::numeric_limits<double>::quiet_NaN();
-    double min = std::numeric_limits<double>::quiet_NaN();
-    double max = std::numeric_limits<double>::quiet_NaN();
-};
-GridStats gridStats(const Grid<float>& g) {
-    GridStats s;
-    double sum = 0;
-    for (float v : g.cells()) {
-        if (std::isnan(v))
-            continue;
-        ++s.cells;
-        sum += v;
-        if (!(v >= s.min))
-            s.min = v;
-        if (!(v <= s.max))
-            s.max = v;
+nlohmann::json statsJson(const ExactGridStats& s) {
+    return {{"cells_with_data", s.cells()},
+            {"mean", finiteOrNull(s.mean())},
+            {"min", finiteOrNull(s.min())},
+            {"max", finiteOrNull(s.max())}};
+}
+
+/// The outputs of the tiles: the angle and distance rasters through `rasters`, the sky-view factor
+/// and the dip written tile core by tile core (NaN → −9999), their statistics summed exactly.
+class TileOutputs final : public TiledHorizonSink {
+  public:
+    TileOutputs(RasterWriter* svf, RasterWriter* dip) : svf_(svf), dip_(dip) {}
+    HorizonSink* rasters = nullptr;
+    ExactGridStats svf_stats, dip_stats;
+
+    void beginDirection(int index, double azimuth_deg) override {
+        rasters->beginDirection(index, azimuth_deg);
     }
-    if (s.cells)
-        s.mean = sum / s.cells;
-    return s;
-}
-nlohmann::json statsJson(const GridStats& s) {
-    return {{"cells_with_data", s.cells},
-            {"mean", finiteOrNull(s.mean)},
-            {"min", finiteOrNull(s.min)},
-            {"max", finiteOrNull(s.max)}};
-}
+    void endDirection(int index) override { rasters->endDirection(index); }
+    bool wantsRectangles() const override { return rasters->wantsRectangles(); }
+    void rectangle(int index, int col0, int row0, int width, int height, int stride,
+                   const float* angle, const float* distance) override {
+        rasters->rectangle(index, col0, row0, width, height, stride, angle, distance);
+    }
+    void summary(int col0, int row0, int width, int height, int stride, const float* svf,
+                 const float* dip) override {
+        write(svf_, svf_stats, col0, row0, width, height, stride, svf);
+        write(dip_, dip_stats, col0, row0, width, height, stride, dip);
+    }
+
+  private:
+    void write(RasterWriter* w, ExactGridStats& stats, int col0, int row0, int width, int height,
+               int stride, const float* data) {
+        if (!w || !data)
+            return;
+        stats.add(data, width, height, static_cast<std::size_t>(stride));
+        buf_.resize(static_cast<std::size_t>(width) * height);
+        for (int r = 0; r < height; ++r) {
+            for (int c = 0; c < width; ++c) {
+                const float v = data[static_cast<std::size_t>(r) * stride + c];
+                buf_[static_cast<std::size_t>(r) * width + c] = std::isnan(v) ? kHorizonNoData : v;
+            }
+        }
+        w->writeWindow(1, col0, row0, width, height, buf_.data(), width);
+        w->flush();
+    }
+    RasterWriter* svf_;
+    RasterWriter* dip_;
+    std::vector<float> buf_;
+};
 
 double centreLatitude(const RunContext& ctx) {
     const auto& g = ctx.grid;
@@ -170,7 +196,9 @@ void runGrid(const HorizonState& st) {
     }
     RunContext ctx = prepareRun(
         "horizon", st.options,
-        {{"-o", st.output}, {"--distance", st.distance}, {"--svf", st.svf}, {"--dip", st.dip}});
+        {{"-o", st.output}, {"--distance", st.distance}, {"--svf", st.svf}, {"--dip", st.dip}}, {},
+        DemCells::Later);
+    describeWindow(ctx, {0, 0, ctx.grid.width(), ctx.grid.height()});  // rasters of every cell
     const int n = opt.directions;
     opt.observer_height_m = ctx.observer_height_m;
     opt.reach_m = ctx.reach_m;
@@ -184,6 +212,16 @@ void runGrid(const HorizonState& st) {
     ctx.run.extra["NODATA"] = "-9999: no terrain sample with data in that direction within reach";
     ctx.run.extra["COORDINATE_CRS"] = st.options.crs.empty() ? "the DEM's" : st.options.crs;
     describeEngine(ctx, opt);
+
+    // The DEM in tiles when it does not fit --memory (a reach is then needed), each read with
+    // a halo of the reach: the same bits as one run over the whole DEM (docs/horizon.md).
+    int threads = 1;
+#ifdef _OPENMP
+    threads = omp_get_max_threads();
+#endif
+    const HorizonTilePlan plan =
+        planHorizonTiles(ctx.grid, opt, threads, ctx.memory.budget, ctx.run.dem_path,
+                         ctx.memory.budget - ctx.memory.work);
 
     // Every raster goes to a temporary file and all are renamed into place at the end.
     std::vector<std::unique_ptr<RasterWriter>> writers;
@@ -236,21 +274,24 @@ void runGrid(const HorizonState& st) {
              "deg");
 
     RasterSink rasters(angle_w, dist_w);
-    HorizonSummary summary;
+    TileOutputs outputs(svf_w, dip_w);
     {
         // The rasters are compressed and written on a thread of their own while the engine
         // computes the next cells; with --threads 1 on the engine's thread, so that one core
         // is all the command uses.
-        const HorizonScan scan(ctx.dem.z, ctx.dem.geometry, ctx.earth, opt);
-        if (ctx.options.threads == 1) {
-            summary = scan.run(rasters, *ctx.progress);
-        } else {
-            AsyncHorizonSink sink(rasters);
-            summary = scan.run(sink, *ctx.progress);
-            sink.finish();
-        }
+        std::unique_ptr<AsyncHorizonSink> async;
+        if (ctx.options.threads != 1)
+            async = std::make_unique<AsyncHorizonSink>(rasters);
+        outputs.rasters = async ? static_cast<HorizonSink*>(async.get()) : &rasters;
+        runHorizonTiles(
+            ctx.grid, ctx.earth, opt, plan,
+            [&](int c0, int r0, int w, int h) {
+                return readDem(ctx.options.dem, demReadOptions(ctx, {c0, r0, w, h})).z;
+            },
+            outputs, *ctx.progress);
+        if (async)
+            async->finish();
     }
-    ctx.dem.z = Grid<float>();  // the elevations are no longer needed
 
     nlohmann::json j = summaryBase(ctx.run);
     j["horizon"] = {{"directions", n},
@@ -272,32 +313,26 @@ void runGrid(const HorizonState& st) {
                             : ", effective radius " + formatDistance(ctx.run.earth_radius_m /
                                                                      (1.0 - ctx.run.refraction))));
     t.add("method", st.options.method);
-    auto toNoData = [](Grid<float>& g) {
-        for (float& v : g.cells()) {
-            if (std::isnan(v))
-                v = kHorizonNoData;
-        }
+    auto statsText = [](const ExactGridStats& s, bool degrees) {
+        auto f = [&](double v) { return degrees ? deg(v) : formatNumber(v, 4); };
+        return "mean " + f(s.mean()) + ", " + f(s.min()) + " to " + f(s.max());
     };
     if (svf_w) {
-        const GridStats s = gridStats(summary.svf);
         j["outputs"]["svf"] = st.svf;
-        j["svf"] = statsJson(s);
-        t.add("sky-view factor", "mean " + formatNumber(s.mean, 4) + ", " + formatNumber(s.min, 4) +
-                                     " to " + formatNumber(s.max, 4));
-        toNoData(summary.svf);
-        svf_w->writeBand(1, summary.svf.data());
-        svf_w->flush();
-        summary.svf = Grid<float>();
+        j["svf"] = statsJson(outputs.svf_stats);
+        t.add("sky-view factor", statsText(outputs.svf_stats, false));
     }
     if (dip_w) {
-        const GridStats s = gridStats(summary.dip);
         j["outputs"]["dip"] = st.dip;
-        j["dip_deg"] = statsJson(s);
-        t.add("dip", "mean " + deg(s.mean) + ", " + deg(s.min) + " to " + deg(s.max));
-        toNoData(summary.dip);
-        dip_w->writeBand(1, summary.dip.data());
-        dip_w->flush();
-        summary.dip = Grid<float>();
+        j["dip_deg"] = statsJson(outputs.dip_stats);
+        t.add("dip", statsText(outputs.dip_stats, true));
+    }
+    if (plan.tiled()) {
+        j["horizon"]["tiles"] = {
+            {"count", plan.tiles()}, {"core_cells", plan.core}, {"halo_cells", plan.halo}};
+        t.add("tiles", std::to_string(plan.tiles()) + " of " + std::to_string(plan.core) + " × " +
+                           std::to_string(plan.core) + " cells, halo " + std::to_string(plan.halo) +
+                           " cells (--memory " + formatMemorySize(ctx.memory.budget) + ")");
     }
     t.add("outputs", [&] {
         std::string o;
@@ -587,7 +622,9 @@ Command addHorizonCommand(CLI::App& root) {
         "\nEvery cell: the eye stands at the cell's centre, --observer-height above its ground.\n"
         "  A direction with no terrain sample with data inside the DEM within reach is -9999 in\n"
         "  that band and is left out of the sky-view factor and the dip. Output is streamed\n"
-        "  direction by direction: memory does not grow with N.\n"
+        "  direction by direction: memory does not grow with N. A DEM whose run does not fit\n"
+        "  --memory is worked tile by tile, each tile read with a halo of --reach (the same\n"
+        "  results); without --reach it is refused.\n"
         "One spot (--at): the horizon every --step degrees, the lowest and highest horizon, the\n"
         "  sectors where the horizon is below the horizontal, the mean angle, the sky-view factor\n"
         "  and the dip of the sea horizon for the eye's height.\n" +

@@ -30,7 +30,7 @@ int haloCells(const GridGeometry& g, double reach_m) {
     }
     side = std::min({side, g.cellWidthM(g.height() - 1), g.cellHeightM(g.height() - 1)});
     const double cells = std::ceil(reach_m / side) + 3;
-    return static_cast<int>(std::min<double>(cells, std::max(g.width(), g.height())));
+    return static_cast<int>(std::min<double>(cells, 1e9));
 }
 
 /// The window read for the core [c0, c1) × [r0, r1): the halo around it, its top-left corner
@@ -131,31 +131,32 @@ std::int64_t horizonRunBytes(int width, int height, int whole_side, const Horizo
 }
 
 HorizonTilePlan planHorizonTiles(const GridGeometry& whole, const HorizonOptions& options,
-                                 int threads, std::int64_t budget, const std::string& dem_name,
-                                 int max_core) {
+                                 int threads, std::int64_t budget_bytes,
+                                 const std::string& dem_name, std::int64_t reserved, int max_core) {
+    const std::int64_t budget = budget_bytes - reserved;  // for this run's own memory
     HorizonTilePlan p;
     p.width = whole.width();
     p.height = whole.height();
-    p.budget_bytes = budget;
+    p.budget_bytes = budget_bytes;
     const int side = std::max(p.width, p.height);
     const std::int64_t whole_bytes = horizonRunBytes(p.width, p.height, side, options, threads);
     const std::string size = std::to_string(p.width) + " × " + std::to_string(p.height);
     if (whole_bytes <= budget && max_core <= 0) {
         p.core = static_cast<int>((side + kBlock - 1) / kBlock * kBlock);
         p.halo = 0;
-        p.peak_bytes = whole_bytes;
+        p.peak_bytes = whole_bytes + reserved;
         return p;
     }
     if (!std::isfinite(options.reach_m)) {
         if (whole_bytes <= budget) {
             p.core = static_cast<int>((side + kBlock - 1) / kBlock * kBlock);
-            p.peak_bytes = whole_bytes;
+            p.peak_bytes = whole_bytes + reserved;
             return p;
         }
         throw UsageError("the horizon of every cell of " + dem_name + " (" + size +
-                         " cells) needs " + formatMemorySize(whole_bytes) +
+                         " cells) needs " + formatMemorySize(whole_bytes + reserved) +
                          " with an unlimited reach, over the memory budget of " +
-                         formatMemorySize(budget) +
+                         formatMemorySize(budget_bytes) +
                          ": give --reach (then the DEM is worked tile by tile) or raise --memory");
     }
     p.halo = haloCells(whole, options.reach_m);
@@ -167,10 +168,10 @@ HorizonTilePlan planHorizonTiles(const GridGeometry& whole, const HorizonOptions
     };
     const std::int64_t smallest = tileBytes(kBlock);
     if (smallest > budget) {
-        throw UsageError("--memory: " + formatMemorySize(budget) + " is below what one tile of " +
-                         dem_name + " needs with a reach of " + std::to_string(p.halo) +
-                         " cells: give at least " + formatMemorySize(smallest) +
-                         " (or a shorter --reach)");
+        throw UsageError("--memory: " + formatMemorySize(budget_bytes) +
+                         " is below what one tile of " + dem_name + " needs with a reach of " +
+                         std::to_string(p.halo) + " cells: give at least " +
+                         formatMemorySize(smallest + reserved) + " (or a shorter --reach)");
     }
     std::int64_t lo = kBlock, hi = alignDown(side) + kBlock;  // lo fits; find the largest
     while (hi - lo > kBlock) {
@@ -185,7 +186,7 @@ HorizonTilePlan planHorizonTiles(const GridGeometry& whole, const HorizonOptions
     p.core = static_cast<int>(lo);
     p.cols = (p.width + p.core - 1) / p.core;
     p.rows = (p.height + p.core - 1) / p.core;
-    p.peak_bytes = tileBytes(p.core);
+    p.peak_bytes = tileBytes(p.core) + reserved;
     return p;
 }
 

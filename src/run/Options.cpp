@@ -191,6 +191,12 @@ OptionTable commonOptions(CommonOptions& o, unsigned which) {
                            "1024 (default or 0: all cores)",
                            "Engine")
                     .checkedBy(wholeNumberCheck(0, kMaxThreads, "(0: every core)")));
+    t.push_back(OptionDecl("--memory", &o.memory,
+                           "memory budget, e.g. 512M or 2G (binary units): bounds the DEM cells "
+                           "held, the tiles, the engines and GDAL's cache (default: half of the "
+                           "physical memory)",
+                           "Engine")
+                    .typeName("SIZE"));
     addOutputOptions(t, o, which);
     return t;
 }

@@ -12,6 +12,7 @@
 #endif
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/MemorySize.hpp"
 #include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
 
@@ -24,6 +25,7 @@ struct CheckedCommon {
     double observer_height_m = 0, target_height_m = 0, reach_m = 0, radius_m = 0;
     EarthShape shape = EarthShape::Ellipsoid;
     std::optional<LinearUnit> z_unit;
+    MemoryShares memory;
 };
 
 CheckedCommon checkCommonOptions(const CommonOptions& options) {
@@ -31,6 +33,9 @@ CheckedCommon checkCommonOptions(const CommonOptions& options) {
     c.observer_height_m = parseHeightOption(options.observer_height, "--observer-height");
     c.target_height_m = parseHeightOption(options.target_height, "--target-height");
     c.reach_m = parseReachOption(options.reach);
+    c.memory =
+        splitMemoryBudget(options.memory.empty() ? defaultMemoryBudget()
+                                                 : parseMemorySize(options.memory, "--memory"));
     c.shape = parseEarthShape(options.earth_model);
     c.radius_m = parseEarthRadiusOption(options.earth_radius, options.earth_model);
     EarthModel probe_earth(c.shape, Ellipsoid::wgs84(), c.radius_m,
@@ -124,6 +129,8 @@ RunContext prepareRun(const RunEnv& env, const std::string& command, const Commo
     ctx.observer_height_m = c.observer_height_m;
     ctx.target_height_m = c.target_height_m;
     ctx.reach_m = c.reach_m;
+    ctx.memory = c.memory;
+    applyGdalCacheShare(ctx.memory);
     // ... then the DEM (exit 3) ...
     DemReadOptions read;
     read.band = options.band;
@@ -204,7 +211,7 @@ std::string ImplausibleCells::sentence(const std::string& dem_path) const {
     return dem_path + buf;
 }
 
-void readDemWindow(RunContext& ctx, const CellWindow& window) {
+DemReadOptions demReadOptions(const RunContext& ctx, const CellWindow& window) {
     DemReadOptions read;
     read.band = ctx.options.band;
     if (!ctx.options.z_unit.empty())
@@ -213,7 +220,20 @@ void readDemWindow(RunContext& ctx, const CellWindow& window) {
     read.win_row = window.row0;
     read.win_width = window.width;
     read.win_height = window.height;
-    ctx.dem = readDem(ctx.options.dem, read);
+    return read;
+}
+
+void readDemWindow(RunContext& ctx, const CellWindow& window) {
+    requireWindowFits(ctx.memory, escapeInvalidUtf8(ctx.options.dem), window.width, window.height,
+                      8,
+                      std::isfinite(ctx.reach_m) &&
+                          (window.width < ctx.grid.width() || window.height < ctx.grid.height()));
+    ctx.dem = readDem(ctx.options.dem, demReadOptions(ctx, window));
+    describeWindow(ctx, window);
+    warnImplausibleElevations(ctx);
+}
+
+void describeWindow(RunContext& ctx, const CellWindow& window) {
     ctx.window = window;
     warnImplausibleElevations(ctx);
     if (!ctx.options.extent.empty()) {

@@ -100,17 +100,8 @@ std::string coastMosaic(const ScratchDir& dir) {
                                                    std::to_string(cuts_r[k]),
                                                    std::to_string(cuts_c[i + 1] - cuts_c[i]),
                                                    std::to_string(cuts_r[k + 1] - cuts_r[k])};
-            std::vector<char*> argv;
-            for (const auto& a : args)
-                argv.push_back(const_cast<char*>(a.c_str()));
-            argv.push_back(nullptr);
-            GDALTranslateOptions* opts = GDALTranslateOptionsNew(argv.data(), nullptr);
-            GDALDatasetH t = GDALTranslate(path.c_str(), src, opts, nullptr);
-            GDALTranslateOptionsFree(opts);
-            EXPECT_NE(t, nullptr) << path;
-            if (!t)
+            if (!translateRaster(src, path, args))
                 return "";
-            GDALClose(t);
             tiles.push_back(path);
         }
     }

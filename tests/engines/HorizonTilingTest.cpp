@@ -93,7 +93,7 @@ Outcome run(const Grid<float>& dem, const GridGeometry& g, const EarthModel& ear
     omp_set_num_threads(threads);
 #endif
     Outcome out;
-    out.plan = planHorizonTiles(g, o, threads, std::int64_t(1) << 40, "the test DEM", max_core);
+    out.plan = planHorizonTiles(g, o, threads, std::int64_t(1) << 40, "the test DEM", 0, max_core);
     GridsSink sink(g.width(), g.height(), o.directions);
     runHorizonTiles(
         g, earth, o, out.plan,

@@ -3,6 +3,7 @@
 // with): every band's values as doubles (exact for Byte, UInt16 and Float32), the band
 // descriptions and units, the no-data value, and dataset metadata.
 #include <gdal.h>
+#include <gdal_utils.h>
 #include <gtest/gtest.h>
 
 #include <cstddef>
@@ -64,6 +65,24 @@ inline std::string metadataItem(const std::string& path, const std::string& key)
     std::string out = v ? v : "";
     GDALClose(ds);
     return out;
+}
+
+/// gdal_translate of `src` into `path` with `args` (as on its command line); false, with a test
+/// failure, when GDAL fails.
+inline bool translateRaster(GDALDatasetH src, const std::string& path,
+                            const std::vector<std::string>& args) {
+    std::vector<char*> argv;
+    for (const auto& a : args)
+        argv.push_back(const_cast<char*>(a.c_str()));
+    argv.push_back(nullptr);
+    GDALTranslateOptions* opts = GDALTranslateOptionsNew(argv.data(), nullptr);
+    GDALDatasetH t = GDALTranslate(path.c_str(), src, opts, nullptr);
+    GDALTranslateOptionsFree(opts);
+    EXPECT_NE(t, nullptr) << path;
+    if (!t)
+        return false;
+    GDALClose(t);
+    return true;
 }
 
 }  // namespace lookfar::testing

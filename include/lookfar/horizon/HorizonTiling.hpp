@@ -36,15 +36,17 @@ struct HorizonTilePlan {
 std::int64_t horizonRunBytes(int width, int height, int whole_side, const HorizonOptions& options,
                              int threads);
 
-/// Plans the run over `whole` (a whole grid) within `budget_bytes`: one tile when it fits,
-/// else the largest square cores whose windows fit. Throws UsageError (one sentence with the
+/// Plans the run over `whole` (a whole grid) within `budget_bytes`, of which `reserved_bytes` go
+/// to others (the caller's GDAL cache and writers): one tile when it fits, else the largest
+/// square cores whose windows fit. Throws UsageError (one sentence with the
 /// DEM's size, the budget and what to do) when the DEM does not fit and the reach is unlimited,
 /// and when even the smallest tile (one 128 × 128 block and its halo) does not fit, saying the
 /// smallest budget that works. `dem_name` names the DEM in messages. `max_core` > 0 caps the
 /// cores' side (a multiple of 128; tests and benchmarks) and tiles even a grid that would fit.
 HorizonTilePlan planHorizonTiles(const GridGeometry& whole, const HorizonOptions& options,
                                  int threads, std::int64_t budget_bytes,
-                                 const std::string& dem_name, int max_core = 0);
+                                 const std::string& dem_name, std::int64_t reserved_bytes = 0,
+                                 int max_core = 0);
 
 /// Receives a tiled run's output, in cells of the whole grid. The directions come tile by tile:
 /// beginDirection … endDirection once per tile and direction (a tile's directions in order).

@@ -17,6 +17,7 @@
 #include "lookfar/earth/EarthModel.hpp"
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/Dem.hpp"
+#include "lookfar/io/MemoryBudget.hpp"
 #include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/RasterWriter.hpp"
 #include "lookfar/io/SitesCsv.hpp"
@@ -51,7 +52,8 @@ struct RunContext {
     EarthModel earth;
     double observer_height_m = 1.7;
     double target_height_m = 0;
-    double reach_m = 0;  ///< infinity = unlimited
+    double reach_m = 0;   ///< infinity = unlimited
+    MemoryShares memory;  ///< --memory, shared out (GDAL's cache is set from it)
     RunDescription run;
     Progress* progress = nullptr;  ///< the caller's sink (RunEnv); never null during a run
     std::unique_ptr<Progress> own_progress;  ///< a sink made for this run alone, if any
@@ -112,8 +114,14 @@ RunContext prepareRun(const RunEnv& env, const std::string& command, const Commo
 /// the smallest rectangle holding every observer's reach window with one cell of margin; the
 /// whole DEM when the reach is unlimited.
 CellWindow workWindow(const RunContext& ctx, const std::vector<Observer>& observers);
-/// Reads the DEM cells of `window` (cells of the whole DEM) into ctx.dem (exit 3).
+/// Reads the DEM cells of `window` (cells of the whole DEM) into ctx.dem (exit 3); a window
+/// whose cells and results (8 bytes a cell) exceed --memory is refused first (exit 2).
 void readDemWindow(RunContext& ctx, const CellWindow& window);
+/// The read options of the cells of `window` (--band, --z-unit).
+DemReadOptions demReadOptions(const RunContext& ctx, const CellWindow& window);
+/// Records `window` as the window of work (ctx.window and the metadata), as readDemWindow does,
+/// for a command that reads its cells itself (horizon's tiles).
+void describeWindow(RunContext& ctx, const CellWindow& window);
 /// `o` (placed on the whole DEM) in the cells of the window read.
 Observer inWindow(const RunContext& ctx, Observer o);
 /// Elevation of a cell of the whole DEM, which must lie in the window read.
