@@ -9,7 +9,8 @@ void LineWorker::run(long j0, long j_last, Scratch& sc) const {
         LineBuf& L = sc.lines[i];
         L.j = j0 + i;
         if (L.j > j_last || !lineRange(d_, L.j, false, L.a_lo, L.a_hi)) {
-            L.a_lo = 0, L.a_hi = -1, L.n = 0;
+            // No sample: nothing of an earlier group's line may be left for gather to read.
+            L.a_lo = 0, L.a_hi = -1, L.n = 0, L.kb = 0, L.a_far_all = 0;
             continue;
         }
         L.n = L.a_hi - L.a_lo + 1;
