@@ -41,6 +41,7 @@ nlohmann::json benchViewshed(const BenchArgs& args);
 nlohmann::json benchHorizon(const BenchArgs& args);
 nlohmann::json benchIntervis(const BenchArgs& args);
 nlohmann::json benchScale(const BenchArgs& args);
+nlohmann::json benchSignal(const BenchArgs& args);
 
 }  // namespace lookfar::bench
 

@@ -15,10 +15,12 @@ int main(int argc, char** argv) {
         {"viewshed", benchViewshed},
         {"horizon", benchHorizon},
         {"intervis", benchIntervis},
-        {"scale", benchScale}};
+        {"scale", benchScale},
+        {"signal", benchSignal}};
     if (argc < 2 || !benches.count(argv[1])) {
-        std::cerr << "usage: lookfar_bench viewshed|horizon|intervis|scale [--quick] [--out FILE] "
-                     "[--cli PATH] [--work DIR]\n";
+        std::cerr
+            << "usage: lookfar_bench viewshed|horizon|intervis|scale|signal [--quick] [--out FILE] "
+               "[--cli PATH] [--work DIR]\n";
         return 2;
     }
     BenchArgs args;

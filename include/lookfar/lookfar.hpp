@@ -39,6 +39,8 @@
 #include "lookfar/link/PathProfile.hpp"
 
 // radio
+#include "lookfar/radio/AntennaPattern.hpp"
+#include "lookfar/radio/MultiSignal.hpp"
 #include "lookfar/radio/Propagation.hpp"
 #include "lookfar/radio/Signal.hpp"
 

@@ -7,12 +7,20 @@
 #include <array>
 #include <cmath>
 #include <cstdint>
+#include <fstream>
+#include <iterator>
 #include <limits>
+#include <map>
+#include <optional>
+#include <sstream>
 #include <string>
 #include <vector>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
+#include "lookfar/io/SitesCsv.hpp"
+#include "lookfar/radio/MultiSignal.hpp"
 #include "lookfar/radio/Signal.hpp"
 #include "lookfar/report/TextTable.hpp"
 
@@ -109,6 +117,278 @@ SignalStats summarize(const Grid<float>& loss, const GridGeometry& g, const Sign
     return st;
 }
 
+/// The optional radio columns of a sites CSV, per data row (by line).
+struct RadioColumns {
+    std::optional<double> frequency_mhz, eirp_dbm, azimuth_deg, beamwidth_deg, tilt_deg, gain_dbi;
+};
+
+/// Reads the radio columns of `path` (the rows readSitesCsv reads), refusing a value that is not
+/// a finite decimal or is out of range, naming the file, line and column (exit 3).
+std::map<int, RadioColumns> readRadioColumns(const std::string& path) {
+    std::ifstream f(path, std::ios::binary);
+    std::ostringstream text;
+    text << f.rdbuf();
+    const std::vector<CsvRecord> records = parseCsvRecords(text.str(), path);
+    std::map<int, RadioColumns> out;
+    if (records.empty())
+        return out;
+    struct Column {
+        const char* name;
+        std::optional<double> RadioColumns::*field;
+        double lo, hi;
+        const char* unit;
+    };
+    const Column columns[] = {
+        {"frequency_mhz", &RadioColumns::frequency_mhz, kMinFrequencyMhz, kMaxFrequencyMhz, "MHz"},
+        {"eirp_dbm", &RadioColumns::eirp_dbm, -100, 200, "dBm"},
+        {"azimuth_deg", &RadioColumns::azimuth_deg, -360, 360, "degrees"},
+        {"beamwidth_deg", &RadioColumns::beamwidth_deg, 1, 360, "degrees"},
+        {"tilt_deg", &RadioColumns::tilt_deg, -90, 90, "degrees"},
+        {"gain_dbi", &RadioColumns::gain_dbi, -20, 60, "dBi"}};
+    std::vector<int> index(std::size(columns), -1);
+    const std::vector<std::string>& header = records.front().fields;
+    for (std::size_t k = 0; k < std::size(columns); ++k) {
+        for (std::size_t i = 0; i < header.size(); ++i) {
+            if (trim(header[i]) == columns[k].name)
+                index[k] = static_cast<int>(i);
+        }
+    }
+    for (std::size_t r = 1; r < records.size(); ++r) {
+        RadioColumns row;
+        for (std::size_t k = 0; k < std::size(columns); ++k) {
+            if (index[k] < 0 || index[k] >= static_cast<int>(records[r].fields.size()))
+                continue;
+            const std::string field = trim(records[r].fields[index[k]]);
+            if (field.empty())
+                continue;  // this row takes the default
+            const auto v = parseDecimal(field);
+            if (!v || !(*v >= columns[k].lo && *v <= columns[k].hi)) {
+                throw InputError(path + ", line " + std::to_string(records[r].line) + ": " +
+                                 columns[k].name + " '" + echoText(field) +
+                                 "' is not a number from " + printfNumber("%g", columns[k].lo) +
+                                 " to " + printfNumber("%g", columns[k].hi) + " " +
+                                 columns[k].unit);
+            }
+            row.*columns[k].field = *v;
+        }
+        out[records[r].line] = row;
+    }
+    return out;
+}
+
+RunReport runSignalSites(const RunEnv& env, const SignalRunOptions& s) {
+    if (!s.fresnel.empty())
+        throw UsageError("--fresnel needs a single transmitter (--tx)");
+    if (!s.served.empty() && !s.min_level_given)
+        throw UsageError("--served needs --min-level-dbm: the level that serves");
+    const double tx_h = antennaHeight(s.tx_height, "--tx-height");
+    const double rx_h = antennaHeight(s.rx_height, "--rx-height");
+    MultiSignalOptions opt;
+    opt.ground.ground_permittivity = s.ground_permittivity;
+    opt.ground.ground_conductivity_s_m = s.ground_conductivity;
+    opt.ground.polarization = parsePolarization(s.polarization);
+    opt.rx_height_m = rx_h;
+    opt.rx_gain_dbi = s.rx_gain_dbi;
+    if (s.min_level_given)
+        opt.min_level_dbm = s.min_level_dbm;
+
+    const std::vector<NamedPath> outputs = {{"-o", s.output, OutputKind::Raster},
+                                            {"--level", s.level, OutputKind::Raster},
+                                            {"--served", s.served, OutputKind::Raster},
+                                            {"--best", s.best, OutputKind::Raster}};
+    RunContext ctx = prepareRun(env, "signal", s.common, outputs, {s.sites}, DemCells::Later);
+    ctx.observer_height_m = tx_h;  // the height of rows without one
+    const PlacedSites placed = placeSitesCsv(ctx, s.sites, "transmitter");
+    const std::map<int, RadioColumns> radio = readRadioColumns(s.sites);
+    std::vector<SignalSite> sites;
+    for (std::size_t i = 0; i < placed.rows.size(); ++i) {
+        const Site& row = placed.rows[i];
+        const std::string where = s.sites + ", line " + std::to_string(row.line);
+        const auto it = radio.find(row.line);
+        const RadioColumns cols = it == radio.end() ? RadioColumns{} : it->second;
+        SignalSite site;
+        site.transmitter = placed.observers[i];
+        if (!(site.transmitter.height_m > 0)) {
+            throw InputError(where + ": the height of transmitter '" + echoText(row.name) +
+                             "' must be above the ground (more than 0 m)");
+        }
+        const std::optional<double> f =
+            cols.frequency_mhz
+                ? cols.frequency_mhz
+                : (s.frequency_given ? std::optional<double>(s.frequency_mhz) : std::nullopt);
+        const std::optional<double> p =
+            cols.eirp_dbm ? cols.eirp_dbm
+                          : (s.eirp_given ? std::optional<double>(s.eirp_dbm) : std::nullopt);
+        if (!f) {
+            throw InputError(where + ": transmitter '" + echoText(row.name) +
+                             "' has no frequency_mhz and no --frequency-mhz is given");
+        }
+        if (!p) {
+            throw InputError(where + ": transmitter '" + echoText(row.name) +
+                             "' has no eirp_dbm and no --eirp-dbm is given: levels of several "
+                             "transmitters need their powers");
+        }
+        site.frequency_mhz = *f;
+        site.eirp_dbm = *p;
+        if (cols.beamwidth_deg) {
+            site.pattern.beamwidth_deg = *cols.beamwidth_deg;
+            site.pattern.azimuth_deg = cols.azimuth_deg.value_or(0.0);
+            if (cols.gain_dbi)
+                site.pattern.vertical_beamwidth_deg =
+                    verticalBeamwidthDeg(*cols.gain_dbi, *cols.beamwidth_deg);
+        }
+        site.pattern.tilt_deg = cols.tilt_deg.value_or(0.0);
+        sites.push_back(site);
+    }
+    readDemWindow(ctx, workWindow(ctx, placed.observers));
+    requireData(ctx, placed);
+    opt.reach_m = ctx.reach_m;
+    for (SignalSite& site : sites)
+        site.transmitter = inWindow(ctx, site.transmitter);
+    const GridGeometry& g = ctx.dem.geometry;
+
+    RunDescription& run = ctx.run;
+    run.observer_height_m = tx_h;
+    run.target_height_m = rx_h;
+    run.method = "reference";
+    run.extra["COORDINATE_CRS"] = s.common.crs.empty() ? "the DEM's" : s.common.crs;
+    run.extra["SITES"] = s.sites;
+    run.extra["SITE_COUNT"] = std::to_string(sites.size());
+    run.extra["RX_HEIGHT_M"] = fmtg(rx_h);
+    run.extra["GROUND_PERMITTIVITY"] = fmtg(s.ground_permittivity);
+    run.extra["GROUND_CONDUCTIVITY_S_M"] = fmtg(s.ground_conductivity);
+    run.extra["POLARIZATION"] = toString(opt.ground.polarization);
+    run.extra["PROPAGATION_METHOD"] =
+        "ITU-R P.525 free space over the slant distance + ITU-R P.526-15 4.5 delta-Bullington";
+    run.extra["ANTENNA_PATTERN"] =
+        "-min(12(phi/phi3)^2 + 12((theta+tilt)/theta3)^2, 25) dB, theta3 by ITU-R F.1336";
+    run.extra["RX_GAIN_DBI"] = fmtg(s.rx_gain_dbi);
+    if (s.min_level_given)
+        run.extra["MIN_LEVEL_DBM"] = fmtg(s.min_level_dbm);
+
+    MultiSignalResult res = multiSignal(ctx.dem.z, g, ctx.earth, sites, opt, *ctx.progress);
+    ctx.dem.z = Grid<float>();
+    const float nan = std::numeric_limits<float>::quiet_NaN();
+    writeGrid(ctx, s.output, PixelType::Float32, nan, res.loss_db.data(),
+              "basic transmission loss from the best server of " + std::to_string(sites.size()) +
+                  " transmitters, dB (median prediction; NaN no data or beyond reach)",
+              "dB");
+    if (!s.level.empty()) {
+        writeGrid(ctx, s.level, PixelType::Float32, nan, res.level_dbm.data(),
+                  "strongest received level of " + std::to_string(sites.size()) +
+                      " transmitters, dBm (receiver gain " + fmtg(s.rx_gain_dbi) +
+                      " dBi, median prediction)",
+                  "dBm");
+    }
+    if (!s.best.empty()) {
+        writeGrid(ctx, s.best, PixelType::UInt16, kNoServer, res.best.data(),
+                  "best server: 0-based row of " + s.sites +
+                      " giving the strongest level, "
+                      "65535 none");
+    }
+    if (!s.served.empty()) {
+        const std::vector<std::uint8_t> served = servedCells(res.level_dbm, s.min_level_dbm);
+        writeGrid(ctx, s.served, PixelType::Byte, kNoServed, served.data(),
+                  "served by any transmitter: 1 strongest level >= " + fmtg(s.min_level_dbm) +
+                      " dBm, 0 below, 255 no data or beyond reach");
+    }
+
+    // Summary: the area by strongest level and, per site, what it serves alone and where it is
+    // the best server.
+    std::int64_t evaluated = 0, served_any = 0;
+    double evaluated_area = 0, served_any_area = 0;
+    std::array<double, 7> band_area{};
+    for (int r = 0; r < res.level_dbm.height(); ++r) {
+        const double area = g.cellAreaM2(r);
+        for (int c = 0; c < res.level_dbm.width(); ++c) {
+            const float v = res.level_dbm(c, r);
+            if (std::isnan(v))
+                continue;
+            ++evaluated;
+            evaluated_area += area;
+            band_area[bandOf(kLevelEdgesDbm, v, true)] += area;
+            if (s.min_level_given && v >= s.min_level_dbm) {
+                ++served_any;
+                served_any_area += area;
+            }
+        }
+    }
+    nlohmann::json j = summaryBase(run);
+    j["outputs"] = {{"loss", s.output}};
+    if (!s.level.empty())
+        j["outputs"]["level"] = s.level;
+    if (!s.best.empty())
+        j["outputs"]["best"] = s.best;
+    if (!s.served.empty())
+        j["outputs"]["served"] = s.served;
+    nlohmann::json list = nlohmann::json::array();
+    TextTable t("Signal from " + std::to_string(sites.size()) + " transmitters on " + ctx.dem.path);
+    t.setHeader({"transmitter", "height", "frequency", "EIRP", "best-server area",
+                 s.min_level_given ? "served alone" : "-"});
+    for (std::size_t i = 0; i < sites.size(); ++i) {
+        const SignalSite& site = sites[i];
+        nlohmann::json e = {{"index", i},
+                            {"name", site.transmitter.name},
+                            {"x", placed.rows[i].x},
+                            {"y", placed.rows[i].y},
+                            {"height_m", site.transmitter.height_m},
+                            {"frequency_mhz", site.frequency_mhz},
+                            {"eirp_dbm", site.eirp_dbm},
+                            {"best_server_area_m2", res.best_area_m2[i]}};
+        if (std::isfinite(site.pattern.beamwidth_deg)) {
+            e["azimuth_deg"] = site.pattern.azimuth_deg;
+            e["beamwidth_deg"] = site.pattern.beamwidth_deg;
+            e["vertical_beamwidth_deg"] = finiteOrNull(site.pattern.vertical_beamwidth_deg);
+        }
+        e["tilt_deg"] = site.pattern.tilt_deg;
+        if (s.min_level_given) {
+            e["served_cells"] = res.served_cells[i];
+            e["served_area_m2"] = res.served_area_m2[i];
+        }
+        list.push_back(e);
+        t.addRow({site.transmitter.name, formatNumber(site.transmitter.height_m, 1) + " m",
+                  fmtg(site.frequency_mhz) + " MHz", fmtg(site.eirp_dbm) + " dBm",
+                  formatArea(res.best_area_m2[i]),
+                  s.min_level_given ? formatArea(res.served_area_m2[i]) : "-"});
+    }
+    j["transmitters"] = list;
+    j["radio"] = {
+        {"rx_height_m", rx_h},
+        {"ground_permittivity", s.ground_permittivity},
+        {"ground_conductivity_s_m", s.ground_conductivity},
+        {"polarization", toString(opt.ground.polarization)},
+        {"rx_gain_dbi", s.rx_gain_dbi},
+        {"min_level_dbm", s.min_level_given ? nlohmann::json(s.min_level_dbm) : nlohmann::json()},
+        {"method", "ITU-R P.525 + ITU-R P.526-15 4.5 delta-Bullington (reference)"}};
+    nlohmann::json bands = nlohmann::json::object();
+    for (std::size_t b = 0; b <= kLevelEdgesDbm.size(); ++b)
+        bands[bandLabel(kLevelEdgesDbm, b, true)] = band_area[b];
+    j["coverage"] = {{"evaluated_cells", evaluated},
+                     {"evaluated_area_m2", evaluated_area},
+                     {"area_by_level_m2", bands}};
+    if (s.min_level_given) {
+        j["coverage"]["served_cells"] = served_any;
+        j["coverage"]["served_area_m2"] = served_any_area;
+        j["coverage"]["served_fraction"] =
+            evaluated_area > 0 ? served_any_area / evaluated_area : 0.0;
+    }
+    TextTable b("Area by strongest received level");
+    b.setHeader({"level", "area", "share of the evaluated area"});
+    for (std::size_t k = 0; k <= kLevelEdgesDbm.size(); ++k) {
+        b.addRow({bandLabel(kLevelEdgesDbm, k, true), formatArea(band_area[k]),
+                  evaluated_area > 0 ? formatNumber(100.0 * band_area[k] / evaluated_area, 2) + " %"
+                                     : "-"});
+    }
+    std::string table = t.render() + "\n" + b.render() + "\n";
+    if (s.min_level_given) {
+        table += "Served by any transmitter: " + formatArea(served_any_area) +
+                 " where the level "
+                 "reaches " +
+                 fmtg(s.min_level_dbm) + " dBm\n";
+    }
+    return finishRun(ctx, j, table);
+}
+
 }  // namespace
 
 CommandHelp SignalRun::help() const {
@@ -124,7 +404,11 @@ CommandHelp SignalRun::help() const {
             "the ground of the\n  two cells. No clutter, atmospheric absorption, tropospheric "
             "scatter or time\n  variability: a median, clear-air prediction. One engine "
             "(reference): every cell's\n  profile on its own, O(distance) per cell; the same "
-            "result for any --threads.\nSummary: evaluated area, least, median and greatest loss, "
+            "result for any --threads.\nSites: with --sites each transmitter's level is EIRP + "
+            "antenna pattern + receiver gain\n  - loss, the pattern -min(12(phi/phi3)^2 + "
+            "12((theta+tilt)/theta3)^2, 25) dB (ITU-R\n  F.1336 form); -o is the loss from the "
+            "best server, --level the strongest level.\nSummary: evaluated area, least, median and "
+            "greatest loss, "
             "the area by loss band (or by\n  received level band with --eirp-dbm) and the served "
             "area with --min-level-dbm.\nCaution: signal layers are median predictions for "
             "planning, not licensed coverage.\n  DEMs omit buildings and vegetation; where a "
@@ -141,7 +425,13 @@ OptionTable SignalRun::declare() {
                            "transmitter position X,Y in --crs (the antenna stands on the centre "
                            "of the cell that holds it)",
                            "Transmitter")
-                    .mandatory());
+                    .excluding("--sites"));
+    t.push_back(OptionDecl("--sites", &s.sites,
+                           "CSV of transmitters (RFC 4180, UTF-8): name,x,y and optional height, "
+                           "frequency_mhz, eirp_dbm, azimuth_deg, beamwidth_deg, tilt_deg, "
+                           "gain_dbi",
+                           "Transmitter")
+                    .fileType());
     t.push_back(
         OptionDecl("--name", &s.name, "name of the transmitter in the summary", "Transmitter")
             .showDefault());
@@ -154,12 +444,14 @@ OptionTable SignalRun::declare() {
                            "receiving antenna above the ground of each cell, metres (> 0)",
                            "Receiver")
                     .showDefault());
-    t.push_back(OptionDecl("--frequency-mhz", &s.frequency_mhz,
-                           "frequency, MHz, 30 to 50000 (where the method applies); required",
-                           "Radio")
-                    .inUnit("MHz")
-                    .checkedBy(decimalCheck(kMinFrequencyMhz, kMaxFrequencyMhz, "MHz"))
-                    .noteGiven(&s.frequency_given));
+    t.push_back(
+        OptionDecl("--frequency-mhz", &s.frequency_mhz,
+                   "frequency, MHz, 30 to 50000 (where the method applies); with --sites for "
+                   "the rows without frequency_mhz",
+                   "Radio")
+            .inUnit("MHz")
+            .checkedBy(decimalCheck(kMinFrequencyMhz, kMaxFrequencyMhz, "MHz"))
+            .noteGiven(&s.frequency_given));
     t.push_back(OptionDecl("--ground-permittivity", &s.ground_permittivity,
                            "relative permittivity of the ground, 1 to 100 (land 22, sea 80)",
                            "Radio")
@@ -207,6 +499,11 @@ OptionTable SignalRun::declare() {
                            "255 no data",
                            "Output")
                     .fileType());
+    t.push_back(OptionDecl("--best", &s.best,
+                           "with --sites: UInt16 raster of the best server, the 0-based data row "
+                           "of the CSV (65535 none)",
+                           "Output")
+                    .fileType());
     t.push_back(OptionDecl("--fresnel", &s.fresnel,
                            "Float32 raster of the worst clearance over the path in first Fresnel "
                            "zone radii (negative when blocked; 0.6 the usual fixed-link "
@@ -218,9 +515,15 @@ OptionTable SignalRun::declare() {
 
 RunReport SignalRun::run(const RunEnv& env) {
     const SignalRunOptions& s = options;
+    if (s.tx.empty() == s.sites.empty())
+        throw UsageError("give either --tx X,Y (one transmitter) or --sites FILE (several)");
+    if (!s.sites.empty())
+        return runSignalSites(env, s);
+    if (!s.best.empty())
+        throw UsageError("--best needs --sites: a best server among several transmitters");
     // Every check of the options first (exit 2), before any file is touched.
     if (!s.frequency_given)
-        throw UsageError("--frequency-mhz is required (30 to 50000 MHz)");
+        throw UsageError("--frequency-mhz is required with --tx (30 to 50000 MHz)");
     if (s.min_level_given && !s.eirp_given)
         throw UsageError("--min-level-dbm needs --eirp-dbm: a level needs the transmitted power");
     if (!s.level.empty() && !s.eirp_given)

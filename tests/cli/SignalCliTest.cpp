@@ -7,6 +7,7 @@
 #include <nlohmann/json.hpp>
 
 #include <cmath>
+#include <fstream>
 #include <string>
 #include <vector>
 
@@ -161,4 +162,74 @@ TEST(SignalCliTest, HelpCarriesTheCautions) {
         << r.out;
     EXPECT_NE(r.out.find("licensed radio engineering prevail"), std::string::npos);
     EXPECT_NE(r.out.find("delta-Bullington"), std::string::npos);
+}
+
+TEST(SignalCliTest, SitesGiveTheStrongestLevelAndTheBestServer) {
+    ScratchDir in, dir;
+    const std::string csv = in.file("masts.csv");
+    std::ofstream(csv) << "name,x,y,height,eirp_dbm,azimuth_deg,beamwidth_deg,tilt_deg,gain_dbi\n"
+                          "Harrowby Head,426000,5595000,30,47,,,,\n"
+                          "Saltmarsh,429000,5596000,20,40,270,65,2,15\n";
+    const CliResult r = runLookfar({"signal",
+                                    kDemo,
+                                    "--sites",
+                                    csv,
+                                    "--frequency-mhz",
+                                    "450",
+                                    "--reach",
+                                    "2000",
+                                    "--min-level-dbm",
+                                    "-80",
+                                    "-o",
+                                    dir.file("loss.tif"),
+                                    "--level",
+                                    dir.file("level.tif"),
+                                    "--best",
+                                    dir.file("best.tif"),
+                                    "--served",
+                                    dir.file("served.tif"),
+                                    "--json",
+                                    "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto j = nlohmann::json::parse(r.out);
+    ASSERT_EQ(j["transmitters"].size(), 2u);
+    EXPECT_EQ(j["transmitters"][1]["name"], "Saltmarsh");
+    EXPECT_DOUBLE_EQ(j["transmitters"][1]["beamwidth_deg"].get<double>(), 65);
+    const Raster best = readRaster(dir.file("best.tif"));
+    const Raster level = readRaster(dir.file("level.tif"));
+    const Raster served = readRaster(dir.file("served.tif"));
+    std::size_t by[2] = {0, 0};
+    for (int row = 0; row < best.height; ++row) {
+        for (int c = 0; c < best.width; ++c) {
+            const double b = best.at(0, c, row);
+            ASSERT_TRUE(b == 0 || b == 1 || b == 65535) << b;
+            if (b == 65535) {
+                EXPECT_TRUE(std::isnan(level.at(0, c, row)));
+                continue;
+            }
+            ++by[static_cast<int>(b)];
+            EXPECT_EQ(served.at(0, c, row), level.at(0, c, row) >= -80 ? 1 : 0);
+        }
+    }
+    EXPECT_GT(by[0], 1000u);
+    EXPECT_GT(by[1], 1000u);
+    // Each mast's own cell is served best by it.
+    EXPECT_EQ(best.at(0, (426000 - 420000) / 25, (5600000 - 5595000) / 25), 0);
+    EXPECT_EQ(best.at(0, (429000 - 420000) / 25, (5600000 - 5596000) / 25), 1);
+}
+
+TEST(SignalCliTest, SitesRowsWithoutPowerOrWithBadValuesAreRefused) {
+    ScratchDir in, out;
+    const std::string no_power = in.file("a.csv");
+    std::ofstream(no_power) << "name,x,y\nHead,426000,5595000\n";
+    expectRefused({"signal", kDemo, "--sites", no_power, "--frequency-mhz", "450", "-o",
+                   out.file("loss.tif"), "--quiet"},
+                  3, {"a.csv", "line 2", "eirp_dbm"}, out);
+    const std::string bad_f = in.file("b.csv");
+    std::ofstream(bad_f) << "name,x,y,frequency_mhz,eirp_dbm\nHead,426000,5595000,5,40\n";
+    expectRefused({"signal", kDemo, "--sites", bad_f, "-o", out.file("loss.tif"), "--quiet"}, 3,
+                  {"b.csv", "line 2", "frequency_mhz", "'5'"}, out);
+    expectRefused({"signal", kDemo, "--sites", bad_f, "--tx", "426000,5595000", "-o",
+                   out.file("loss.tif"), "--quiet"},
+                  2, {"--tx", "--sites"}, out);
 }

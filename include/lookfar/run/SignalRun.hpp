@@ -1,5 +1,6 @@
 #pragma once
-// lookfar signal: the basic transmission loss from a transmitter to every cell (ITU-R P.525 free
+// lookfar signal: the basic transmission loss from a transmitter (or the best of several, from a
+// sites CSV with antenna patterns) to every cell (ITU-R P.525 free
 // space + the delta-Bullington diffraction of ITU-R P.526-15 §4.5, lookfar/radio), with the
 // received level, the served area and the Fresnel clearance; the summary adds the served area and
 // the area by level band.
@@ -14,7 +15,8 @@ struct SignalRunOptions {
         c.refraction = 0.25;
         return c;
     }();
-    std::string tx;  ///< X,Y in --crs
+    std::string tx;     ///< X,Y in --crs (one transmitter)
+    std::string sites;  ///< CSV of transmitters (several); one of tx and sites
     std::string name = "transmitter";
     std::string tx_height = "30";   ///< above the ground, > 0 (unit suffixes allowed)
     std::string rx_height = "1.5";  ///< above the ground of every cell, > 0
@@ -29,6 +31,7 @@ struct SignalRunOptions {
     double min_level_dbm = 0;
     bool min_level_given = false;
     std::string output, level, served, fresnel;  ///< output paths, empty = not written
+    std::string best;                            ///< with sites: the best-server raster
 };
 
 class SignalRun final : public RunCommand {
