@@ -69,6 +69,7 @@
 // run
 #include "lookfar/run/Command.hpp"
 #include "lookfar/run/Format.hpp"
+#include "lookfar/run/HorizonRun.hpp"
 #include "lookfar/run/InfoRun.hpp"
 #include "lookfar/run/IntervisRun.hpp"
 #include "lookfar/run/LinkRun.hpp"

@@ -57,10 +57,6 @@ void addDeclaredOptions(CLI::App* app, const OptionTable& table) {
     }
 }
 
-void addCommonOptions(CLI::App* app, CommonOptions& o, unsigned which) {
-    addDeclaredOptions(app, commonOptions(o, which));
-}
-
 void printReport(const RunReport& report, bool json) {
     if (json) {
         std::cout << report.summary.dump(2) << "\n";
@@ -172,22 +168,6 @@ void TerminalProgress::warn(const std::string& sentence) {
 
 bool TerminalProgress::cancelled() const {
     return interruptFlag().load(std::memory_order_relaxed);
-}
-
-// ---------------------------------------------------------------------------------------------
-
-RunContext prepareRun(const std::string& command, const CommonOptions& options,
-                      const std::vector<NamedPath>& outputs,
-                      const std::vector<std::string>& extra_inputs, DemCells cells) {
-    auto progress = std::make_unique<TerminalProgress>(options.quiet);
-    RunContext ctx = run::prepareRun({progress.get(), commandLine()}, command, options, outputs,
-                                     extra_inputs, cells);
-    ctx.own_progress = std::move(progress);
-    return ctx;
-}
-
-void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& table) {
-    printReport(finishRun(ctx, std::move(summary), table), ctx.options.json);
 }
 
 }  // namespace lookfar::cli

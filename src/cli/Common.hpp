@@ -15,8 +15,10 @@
 
 namespace lookfar::cli {
 
-// Commands not yet moved to a run class still call the run layer's helpers by their names.
-using namespace lookfar::run;
+using run::CommonOptions;
+using run::OptionDecl;
+using run::OptionTable;
+using run::RunReport;
 
 /// A subcommand: its CLI11 app and what to run once it is parsed.
 struct Command {
@@ -28,8 +30,6 @@ struct Command {
 CLI::Validator cliCheck(run::ValueCheck check);
 /// Adds the declared options to `app`, binding each to its field.
 void addDeclaredOptions(CLI::App* app, const OptionTable& table);
-/// Adds the DEM positional argument and the common options to `app`.
-void addCommonOptions(CLI::App* app, CommonOptions& options, unsigned which = kAllCommon);
 
 /// Registers a run-layer command under `root`: its options from its declarations, its help and
 /// footer; once parsed it runs with progress on stderr and prints its report.
@@ -63,15 +63,6 @@ class TerminalProgress final : public Progress {
 
 /// Prints the report: the summary JSON with --json, else the table.
 void printReport(const RunReport& report, bool json);
-
-/// prepareRun with progress on stderr and the command line as typed (commands not yet moved to
-/// a run class).
-RunContext prepareRun(const std::string& command, const CommonOptions& options,
-                      const std::vector<NamedPath>& outputs,
-                      const std::vector<std::string>& extra_inputs = {},
-                      DemCells cells = DemCells::Whole);
-/// finishRun, then printReport.
-void finishSummary(RunContext& ctx, nlohmann::json summary, const std::string& table);
 
 /// The command line as typed, for metadata.
 std::string& commandLine();

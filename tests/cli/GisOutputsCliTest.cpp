@@ -130,6 +130,11 @@ TEST(GisOutputsCliTest, RasterNamesWithoutATiffExtensionAreRefusedBeforeAnyWork)
         {{"signal", missing_dem, "--tx", obs, "--frequency-mhz", "446", "--eirp-dbm", "40", "-o",
           dir.file("l.tif"), "--level", dir.file("level.asc")},
          "--level"},
+        // horizon checks its raster names too since it became a run class (HorizonRun).
+        {{"horizon", missing_dem, "-o", dir.file("h.png")}, "-o"},
+        {{"horizon", missing_dem, "-o", dir.file("h.tif"), "--distance", dir.file("d.tif"), "--dip",
+          dir.file("dip.tif"), "--svf", dir.file("svf")},
+         "--svf"},
     };
     for (const auto& c : cases) {
         SCOPED_TRACE(c.args.back());

@@ -56,7 +56,6 @@ struct RunContext {
     MemoryShares memory;  ///< --memory, shared out (GDAL's cache is set from it)
     RunDescription run;
     Progress* progress = nullptr;  ///< the caller's sink (RunEnv); never null during a run
-    std::unique_ptr<Progress> own_progress;  ///< a sink made for this run alone, if any
     std::chrono::steady_clock::time_point start;
     std::vector<std::string> inputs;  ///< paths of every input (for output checks)
     /// The run's outputs, finished in temporaries and renamed together by finishRun().

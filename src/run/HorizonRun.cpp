@@ -1,0 +1,702 @@
+#include "lookfar/run/HorizonRun.hpp"
+
+#include <strings.h>
+
+#include <cmath>
+#include <cstring>
+#include <memory>
+#include <string>
+#include <vector>
+
+#ifdef _OPENMP
+#include <omp.h>
+#endif
+
+#include "lookfar/core/Errors.hpp"
+#include "lookfar/core/MemorySize.hpp"
+#include "lookfar/horizon/AsyncSink.hpp"
+#include "lookfar/horizon/HorizonProfile.hpp"
+#include "lookfar/horizon/HorizonScan.hpp"
+#include "lookfar/horizon/HorizonTiling.hpp"
+#include "lookfar/report/SvgPlot.hpp"
+#include "lookfar/report/TextTable.hpp"
+
+namespace lookfar::run {
+
+namespace {
+
+constexpr float kHorizonNoData = -9999.0f;  // docs/design.md: horizon rasters use −9999
+
+std::string deg(double v, int decimals = 3) {
+    return std::isfinite(v) ? formatNumber(v, decimals) + "°" : "-";
+}
+std::string reachText(double reach_m) {
+    return std::isfinite(reach_m) ? formatDistance(reach_m) : "unlimited";
+}
+std::string azimuthText(double az) {
+    return printfNumber("%.3f", az) + "° clockwise from grid north";
+}
+
+/// Streams rectangles to the angle and distance rasters, NaN → −9999, with GDAL's cache flushed
+/// every few MiB so that memory stays bounded whatever N.
+class RasterSink final : public HorizonSink {
+  public:
+    RasterSink(RasterWriter* angle, RasterWriter* distance) : angle_(angle), distance_(distance) {
+        for (RasterWriter* w : {angle, distance}) {
+            if (w)
+                w->blockSize(block_cols_, block_rows_);
+        }
+    }
+    bool wantsRectangles() const override { return angle_ || distance_; }
+    void rectangle(int index, int col0, int row0, int width, int height, int stride,
+                   const float* angle, const float* distance) override {
+        put(angle_, index, col0, row0, width, height, stride, angle);
+        put(distance_, index, col0, row0, width, height, stride, distance);
+        written_ += static_cast<std::size_t>(width) * height * 4;
+        if (written_ > kFlushBytes)
+            flush();
+    }
+    void endDirection(int) override { flush(); }
+
+  private:
+    static constexpr std::size_t kFlushBytes = 2u << 20;
+    void put(RasterWriter* w, int index, int col0, int row0, int width, int height, int stride,
+             const float* data) {
+        if (!w)
+            return;
+        // A rectangle that is one block of the raster is written as a block, past GDAL's cache
+        // (which would keep one block per band: memory growing with N); others as a window.
+        const bool block = block_cols_ > 0 && col0 % block_cols_ == 0 && row0 % block_rows_ == 0 &&
+                           width <= block_cols_ && height <= block_rows_ &&
+                           (width == block_cols_ || col0 + width == w->spec().width) &&
+                           (height == block_rows_ || row0 + height == w->spec().height);
+        const int out_w = block ? block_cols_ : width;
+        buf_.assign(static_cast<std::size_t>(out_w) * (block ? block_rows_ : height),
+                    kHorizonNoData);
+        for (int r = 0; r < height; ++r) {
+            for (int c = 0; c < width; ++c) {
+                const float v = data[static_cast<std::size_t>(r) * stride + c];
+                buf_[static_cast<std::size_t>(r) * out_w + c] = std::isnan(v) ? kHorizonNoData : v;
+            }
+        }
+        if (block)
+            w->writeBlock(index + 1, col0 / block_cols_, row0 / block_rows_, buf_.data());
+        else
+            w->writeWindow(index + 1, col0, row0, width, height, buf_.data(), width);
+    }
+    int block_cols_ = 0, block_rows_ = 0;
+    void flush() {
+        if (angle_)
+            angle_->flush();
+        if (distance_)
+            distance_->flush();
+        written_ = 0;
+    }
+    RasterWriter* angle_;
+    RasterWriter* distance_;
+    std::vector<float> buf_;
+    std::size_t written_ = 0;
+};
+
+nlohmann::json statsJson(const ExactGridStats& s) {
+    return {{"cells_with_data", s.cells()},
+            {"mean", finiteOrNull(s.mean())},
+            {"min", finiteOrNull(s.min())},
+            {"max", finiteOrNull(s.max())}};
+}
+
+/// The outputs of the tiles: the angle and distance rasters through `rasters`, the sky-view factor
+/// and the dip written tile core by tile core (NaN → −9999), their statistics summed exactly.
+class TileOutputs final : public TiledHorizonSink {
+  public:
+    TileOutputs(RasterWriter* svf, RasterWriter* dip) : svf_(svf), dip_(dip) {}
+    HorizonSink* rasters = nullptr;
+    ExactGridStats svf_stats, dip_stats;
+
+    void beginDirection(int index, double azimuth_deg) override {
+        rasters->beginDirection(index, azimuth_deg);
+    }
+    void endDirection(int index) override { rasters->endDirection(index); }
+    bool wantsRectangles() const override { return rasters->wantsRectangles(); }
+    void rectangle(int index, int col0, int row0, int width, int height, int stride,
+                   const float* angle, const float* distance) override {
+        rasters->rectangle(index, col0, row0, width, height, stride, angle, distance);
+    }
+    void summary(int col0, int row0, int width, int height, int stride, const float* svf,
+                 const float* dip) override {
+        write(svf_, svf_stats, col0, row0, width, height, stride, svf);
+        write(dip_, dip_stats, col0, row0, width, height, stride, dip);
+    }
+
+  private:
+    void write(RasterWriter* w, ExactGridStats& stats, int col0, int row0, int width, int height,
+               int stride, const float* data) {
+        if (!w || !data)
+            return;
+        stats.add(data, width, height, static_cast<std::size_t>(stride));
+        buf_.resize(static_cast<std::size_t>(width) * height);
+        for (int r = 0; r < height; ++r) {
+            for (int c = 0; c < width; ++c) {
+                const float v = data[static_cast<std::size_t>(r) * stride + c];
+                buf_[static_cast<std::size_t>(r) * width + c] = std::isnan(v) ? kHorizonNoData : v;
+            }
+        }
+        w->writeWindow(1, col0, row0, width, height, buf_.data(), width);
+        w->flush();
+    }
+    RasterWriter* svf_;
+    RasterWriter* dip_;
+    std::vector<float> buf_;
+};
+
+double centreLatitude(const RunContext& ctx) {
+    const auto& g = ctx.grid;
+    return latitudeOf(ctx, {g.mapX((g.width() - 1) / 2.0), g.mapY((g.height() - 1) / 2.0)});
+}
+
+void describeEngine(RunContext& ctx, const HorizonOptions& o) {
+    ctx.run.extra["CURVATURE_LATITUDE_DEG"] = printfNumber("%.6f", o.latitude_deg);
+    if (o.method == HorizonMethod::Fast) {
+        ctx.run.extra["FAST_EXACT_STEPS"] = std::to_string(o.exact_steps);
+        ctx.run.extra["FAST_REFINE_STEPS"] = std::to_string(o.refine_steps);
+    }
+}
+
+/// The options of every cell checked (exit 2 before any file is touched).
+HorizonOptions checkGridOptions(const HorizonRunOptions& st) {
+    if (st.output.empty() && st.distance.empty() && st.svf.empty() && st.dip.empty()) {
+        throw UsageError(
+            "give at least one output: -o FILE (angles), --distance, --svf or --dip; or --at X,Y "
+            "for the horizon of one spot");
+    }
+    if (!st.csv.empty() || !st.plot.empty())
+        throw UsageError("--csv and --plot belong to the horizon of one spot: give --at X,Y");
+    if (st.step_given)
+        throw UsageError("--step belongs to the horizon of one spot (--at); use --directions");
+    HorizonOptions opt;
+    opt.directions = st.directions;
+    if (opt.directions < 1 || opt.directions > kMaxHorizonDirections) {
+        throw UsageError("--directions: " + std::to_string(st.directions) +
+                         " is outside 1 to 3600");
+    }
+    opt.want_svf = !st.svf.empty();
+    opt.want_dip = !st.dip.empty();
+    return opt;
+}
+
+/// The rasters of every cell, each written to its temporary file; handed to the run's outputs at
+/// the end, so that they are renamed into place together and a failure leaves none behind.
+class GridRasters {
+  public:
+    GridRasters(RunContext& ctx, int directions) : ctx_(ctx), n_(directions) {}
+
+    /// A Float32 raster of `bands` bands at `path`, or null when `path` is empty.
+    RasterWriter* open(const std::string& path, int bands, const std::string& what,
+                       const std::string& unit) {
+        if (path.empty())
+            return nullptr;
+        RasterSpec spec = outputSpec(ctx_, path, PixelType::Float32, bands, kHorizonNoData);
+        spec.unit_type = unit;
+        if (bands > 1)
+            streamingLayout(spec);
+        for (int i = 0; i < bands; ++i) {
+            spec.band_descriptions.push_back(
+                bands == 1 ? what : what + ", azimuth " + azimuthText(horizonAzimuthDeg(i, n_)));
+        }
+        writers_.push_back(std::make_unique<RasterWriter>(spec));
+        return writers_.back().get();
+    }
+    /// "a.tif, b.tif": the paths, in the order opened.
+    std::string paths() const {
+        std::string o;
+        for (const auto& w : writers_)
+            o += (o.empty() ? "" : ", ") + w->spec().path;
+        return o;
+    }
+    void handOver() {
+        for (auto& w : writers_)
+            ctx_.outputs->addRaster(*w);
+    }
+
+  private:
+    /// Bands are written one direction after another: band-interleaved blocks are written once
+    /// each (pixel interleaving would rewrite every block N times). The fast engine delivers
+    /// 128 × 128 tiles: blocks of that size are written whole, once, and the band of tiles
+    /// waiting for their last line stays small.
+    static void streamingLayout(RasterSpec& spec) {
+        auto given = [&](const char* key) {
+            for (const auto& co : spec.creation_options) {
+                if (strncasecmp(co.c_str(), key, std::strlen(key)) == 0)
+                    return true;
+            }
+            return false;
+        };
+        if (!given("INTERLEAVE="))
+            spec.creation_options.push_back("INTERLEAVE=BAND");
+        // DEFLATE's fastest level: angles and distances are noisy floats that shrink by about
+        // 16 % at any level, and level 6 took 2.4 times as long (2048² × 8, -o and --distance:
+        // 8.4 s against 3.5 s, files 1.5 % smaller).
+        if (!given("ZLEVEL="))
+            spec.creation_options.push_back("ZLEVEL=1");
+        if (!given("TILED=") && !given("BLOCKXSIZE=") && !given("BLOCKYSIZE=")) {
+            spec.creation_options.push_back("BLOCKXSIZE=128");
+            spec.creation_options.push_back("BLOCKYSIZE=128");
+        }
+    }
+    RunContext& ctx_;
+    int n_;
+    std::vector<std::unique_ptr<RasterWriter>> writers_;
+};
+
+/// What the rasters' metadata records of a run over every cell.
+void describeGrid(RunContext& ctx, const HorizonRunOptions& st, const HorizonOptions& opt) {
+    const int n = opt.directions;
+    ctx.run.extra["DIRECTIONS"] = std::to_string(n);
+    ctx.run.extra["AZIMUTHS"] = "band i (1-based) is azimuth (i - 1) * 360 / " + std::to_string(n) +
+                                " degrees clockwise from grid north, measured on the ground";
+    ctx.run.extra["NODATA"] = "-9999: no terrain sample with data in that direction within reach";
+    ctx.run.extra["COORDINATE_CRS"] = st.common.crs.empty() ? "the DEM's" : st.common.crs;
+    describeEngine(ctx, opt);
+}
+
+/// The table of a run over every cell, without the statistics and outputs.
+TextTable gridTable(const RunContext& ctx, int n) {
+    TextTable t("Horizon of every cell of " + ctx.run.dem_path);
+    t.add("directions", std::to_string(n) + ", every " + printfNumber("%.4g", 360.0 / n) +
+                            "° clockwise from grid north");
+    t.add("eye", formatNumber(ctx.observer_height_m, 2) + " m above the ground of each cell");
+    t.add("reach", reachText(ctx.reach_m));
+    t.add("earth", ctx.run.earth_model + ", refraction k = " + fmtg(ctx.run.refraction) +
+                       (ctx.earth.shape() == EarthShape::Flat
+                            ? ""
+                            : ", effective radius " + formatDistance(ctx.run.earth_radius_m /
+                                                                     (1.0 - ctx.run.refraction))));
+    t.add("method", ctx.options.method);
+    return t;
+}
+
+std::string statsText(const ExactGridStats& s, bool degrees) {
+    auto f = [&](double v) { return degrees ? deg(v) : formatNumber(v, 4); };
+    return "mean " + f(s.mean()) + ", " + f(s.min()) + " to " + f(s.max());
+}
+
+/// The summary and table of a run over every cell.
+RunReport finishGrid(RunContext& ctx, const HorizonRunOptions& st, const HorizonOptions& opt,
+                     const HorizonTilePlan& plan, const TileOutputs& outputs,
+                     GridRasters& rasters) {
+    const int n = opt.directions;
+    nlohmann::json j = summaryBase(ctx.run);
+    j["horizon"] = {{"directions", n},
+                    {"azimuth_step_deg", 360.0 / n},
+                    {"curvature_latitude_deg", opt.latitude_deg}};
+    j["outputs"] = nlohmann::json::object();
+    if (!st.output.empty())
+        j["outputs"]["angle"] = st.output;
+    if (!st.distance.empty())
+        j["outputs"]["distance"] = st.distance;
+    TextTable t = gridTable(ctx, n);
+    if (!st.svf.empty()) {
+        j["outputs"]["svf"] = st.svf;
+        j["svf"] = statsJson(outputs.svf_stats);
+        t.add("sky-view factor", statsText(outputs.svf_stats, false));
+    }
+    if (!st.dip.empty()) {
+        j["outputs"]["dip"] = st.dip;
+        j["dip_deg"] = statsJson(outputs.dip_stats);
+        t.add("dip", statsText(outputs.dip_stats, true));
+    }
+    if (plan.tiled()) {
+        j["horizon"]["tiles"] = {
+            {"count", plan.tiles()}, {"core_cells", plan.core}, {"halo_cells", plan.halo}};
+        t.add("tiles", std::to_string(plan.tiles()) + " of " + std::to_string(plan.core) + " × " +
+                           std::to_string(plan.core) + " cells, halo " + std::to_string(plan.halo) +
+                           " cells (--memory " + formatMemorySize(ctx.memory.budget) + ")");
+    }
+    t.add("outputs", rasters.paths());
+    rasters.handOver();
+    return finishRun(ctx, j, t.render());
+}
+
+RunReport runGrid(const RunEnv& env, const HorizonRunOptions& st) {
+    HorizonOptions opt = checkGridOptions(st);
+    RunContext ctx = prepareRun(env, "horizon", st.common,
+                                {{"-o", st.output, OutputKind::Raster},
+                                 {"--distance", st.distance, OutputKind::Raster},
+                                 {"--svf", st.svf, OutputKind::Raster},
+                                 {"--dip", st.dip, OutputKind::Raster}},
+                                {}, DemCells::Later);
+    describeWindow(ctx, {0, 0, ctx.grid.width(), ctx.grid.height()});  // rasters of every cell
+    const int n = opt.directions;
+    opt.observer_height_m = ctx.observer_height_m;
+    opt.reach_m = ctx.reach_m;
+    opt.latitude_deg = centreLatitude(ctx);
+    opt.method = st.common.method == "reference" ? HorizonMethod::Reference : HorizonMethod::Fast;
+    describeGrid(ctx, st, opt);
+
+    // The DEM in tiles when it does not fit --memory (a reach is then needed), each read with
+    // a halo of the reach: the same bits as one run over the whole DEM (docs/horizon.md).
+    int threads = 1;
+#ifdef _OPENMP
+    threads = omp_get_max_threads();
+#endif
+    const HorizonTilePlan plan =
+        planHorizonTiles(ctx.grid, opt, threads, ctx.memory.budget, ctx.run.dem_path,
+                         ctx.memory.budget - ctx.memory.work);
+
+    GridRasters rasters(ctx, n);
+    RasterWriter* angle_w = rasters.open(
+        st.output, n, "horizon angle, degrees above the eye's local horizontal", "deg");
+    RasterWriter* dist_w = rasters.open(
+        st.distance, n, "ground distance to the horizon-defining terrain, metres", "m");
+    RasterWriter* svf_w = rasters.open(
+        st.svf, 1, "sky-view factor, 1 - mean over the directions of sin(max(horizon angle, 0))",
+        "");
+    RasterWriter* dip_w =
+        rasters.open(st.dip, 1,
+                     "dip: largest depression of the horizon below the eye's local horizontal, "
+                     "degrees (negative where the horizon is above it all round)",
+                     "deg");
+
+    RasterSink sink(angle_w, dist_w);
+    TileOutputs outputs(svf_w, dip_w);
+    {
+        // The rasters are compressed and written on a thread of their own while the engine
+        // computes the next cells; with --threads 1 on the engine's thread, so that one core
+        // is all the command uses.
+        std::unique_ptr<AsyncHorizonSink> async;
+        if (ctx.options.threads != 1)
+            async = std::make_unique<AsyncHorizonSink>(sink);
+        outputs.rasters = async ? static_cast<HorizonSink*>(async.get()) : &sink;
+        runHorizonTiles(
+            ctx.grid, ctx.earth, opt, plan,
+            [&](int c0, int r0, int w, int h) {
+                return readDem(ctx.options.dem, demReadOptions(ctx, {c0, r0, w, h})).z;
+            },
+            outputs, *ctx.progress);
+        if (async)
+            async->finish();
+    }
+    return finishGrid(ctx, st, opt, plan, outputs, rasters);
+}
+
+// ---------------------------------------------------------------------------------------------
+
+std::string svgPanorama(const HorizonProfile& p, const std::string& title) {
+    // Vertical range: the terrain, the horizontal and the sea-horizon dip, with a margin.
+    double lo = -p.sea_horizon_dip_deg, hi = 0;
+    for (const auto& d : p.directions) {
+        if (!d.sample.found)
+            continue;
+        lo = std::fmin(lo, d.sample.angle_deg);
+        hi = std::fmax(hi, d.sample.angle_deg);
+    }
+    const double pad = std::fmax(0.15 * (hi - lo), 0.1);
+    const double y0 = lo - pad, y1 = hi + pad;
+    SvgPlot plot(1100, 440, 0, 360, y0, y1);
+    plot.title(title + " — terrain horizon filled");
+    plot.axes("azimuth, degrees clockwise from grid north",
+              "horizon angle, degrees above the eye's horizontal", 45, 0);
+    // Sky above, terrain below: each run of directions with data is one filled band down to the
+    // bottom of the plot; the last direction wraps to 360°.
+    SvgStyle ground;
+    ground.stroke = "#3d4f2f";
+    ground.fill = "#9aa77a";
+    ground.width = 1.2;
+    const int n = static_cast<int>(p.directions.size());
+    std::vector<double> xs, ys, base;
+    auto flushRun = [&] {
+        if (!xs.empty())
+            plot.band(xs, ys, base, ground);
+        xs.clear(), ys.clear(), base.clear();
+    };
+    for (int i = 0; i <= n; ++i) {
+        const auto& d = p.directions[i % n];
+        if (!d.sample.found) {
+            flushRun();
+            continue;
+        }
+        xs.push_back(i == n ? 360.0 : d.azimuth_deg);
+        ys.push_back(d.sample.angle_deg);
+        base.push_back(y0);
+    }
+    flushRun();
+    SvgStyle horizontal;
+    horizontal.stroke = "#202020";
+    horizontal.width = 1.0;
+    plot.hline(0.0, "eye's horizontal", horizontal);
+    if (p.sea_horizon_dip_deg > 0) {
+        SvgStyle sea;
+        sea.stroke = "#1f5fa8";
+        sea.width = 1.2;
+        sea.dash = "7 4";
+        plot.hline(
+            -p.sea_horizon_dip_deg,
+            "sea horizon for this eye: dip " + printfNumber("%.3f", p.sea_horizon_dip_deg) + "°",
+            sea);
+    }
+    // Compass points along the top of the sky (the lines are labelled where they end).
+    static const char* const kPoints[] = {"N", "NE", "E", "SE", "S", "SW", "W", "NW", "N"};
+    for (int k = 0; k <= 8; ++k) {
+        const char* anchor = k == 0 ? "start" : (k == 8 ? "end" : "middle");
+        plot.text(45.0 * k, y1, kPoints[k], "#555555", anchor, k == 0 ? 4 : (k == 8 ? -4 : 0), 14);
+    }
+    if (std::isfinite(p.highest_angle_deg)) {
+        const bool right = p.highest_azimuth_deg > 270;
+        plot.marker(p.highest_azimuth_deg, p.highest_angle_deg, "", "#8c2d04");
+        plot.text(p.highest_azimuth_deg, p.highest_angle_deg,
+                  "highest " + printfNumber("%.2f", p.highest_angle_deg) + "° at " +
+                      formatDistance(p.highest_distance_m),
+                  "#8c2d04", right ? "end" : "start", right ? -8 : 8, -8);
+    }
+    return plot.render();
+}
+
+/// The options of one spot checked (exit 2 before any file is touched); returns --at.
+MapPoint checkSpotOptions(const HorizonRunOptions& st) {
+    if (!st.output.empty() || !st.distance.empty() || !st.svf.empty() || !st.dip.empty()) {
+        throw UsageError(
+            "--at gives the horizon of one spot (--csv, --plot, the summary); the rasters -o, "
+            "--distance, --svf and --dip are for every cell and cannot be combined with it");
+    }
+    if (st.directions_given)
+        throw UsageError("--directions is for every cell; with --at give the step with --step");
+    if (!(st.step >= kMinHorizonStepDeg && st.step <= kMaxHorizonStepDeg)) {
+        throw UsageError("--step: " + printfNumber("%g", st.step) + "° is outside 0.05° to 90°");
+    }
+    return parsePoint(st.at, "--at");
+}
+
+/// The open sectors of `p` as the summary's array and the table's text ("" for none).
+std::string openSectors(const HorizonProfile& p, nlohmann::json& sectors) {
+    sectors = nlohmann::json::array();
+    std::string text;
+    for (const auto& s : p.open_sectors) {
+        sectors.push_back(
+            {{"from_deg", s.from_deg}, {"to_deg", s.to_deg}, {"width_deg", s.width_deg}});
+        text += (text.empty() ? "" : "; ") + printfNumber("%.1f", s.from_deg) + "° to " +
+                printfNumber("%.1f", s.to_deg) + "° clockwise, " +
+                printfNumber("%.4g", s.width_deg) + "° wide";
+    }
+    if (p.open_sectors.size() == 1 && p.open_sectors[0].width_deg >= 360.0)
+        text = "all round (360°)";
+    return text;
+}
+
+/// A spot's horizon, where it stands, and how to show its points in the coordinates of --at.
+struct Spot {
+    MapPoint given;   ///< --at as given
+    Observer cell;    ///< placed on the whole DEM
+    MapPoint centre;  ///< the cell's centre in the coordinates of --at
+    HorizonProfile p;
+};
+
+nlohmann::json spotJson(const HorizonRunOptions& st, const Spot& s, const nlohmann::json& sectors) {
+    const HorizonProfile& p = s.p;
+    return {{"step_deg", st.step},
+            {"directions", p.directions.size()},
+            {"directions_with_data", p.directions_with_data},
+            {"lowest",
+             {{"angle_deg", finiteOrNull(p.lowest_angle_deg)},
+              {"azimuth_deg", finiteOrNull(p.lowest_azimuth_deg)},
+              {"distance_m", finiteOrNull(p.lowest_distance_m)}}},
+            {"highest",
+             {{"angle_deg", finiteOrNull(p.highest_angle_deg)},
+              {"azimuth_deg", finiteOrNull(p.highest_azimuth_deg)},
+              {"distance_m", finiteOrNull(p.highest_distance_m)}}},
+            {"mean_angle_deg", finiteOrNull(p.mean_angle_deg)},
+            {"sky_view_factor", finiteOrNull(p.sky_view_factor)},
+            {"dip_deg", finiteOrNull(p.dip_deg)},
+            {"open_sectors", sectors},
+            {"sea_horizon_dip_deg", p.sea_horizon_dip_deg},
+            {"sea_horizon_distance_m", finiteOrNull(p.sea_horizon_distance_m)}};
+}
+
+std::string spotTable(const RunContext& ctx, const HorizonRunOptions& st, const Spot& s,
+                      const std::string& sector_text) {
+    const HorizonProfile& p = s.p;
+    TextTable t("Horizon at " + fmtg(s.given.x) + ", " + fmtg(s.given.y) + " on " +
+                ctx.run.dem_path);
+    t.add("cell", std::to_string(s.cell.col) + ", " + std::to_string(s.cell.row) + " (centre " +
+                      fmtg(s.centre.x) + ", " + fmtg(s.centre.y) + ")");
+    t.add("ground", formatNumber(p.ground_m, 2) + " m");
+    t.add("eye", formatNumber(p.eye_m, 2) + " m (" + formatNumber(ctx.observer_height_m, 2) +
+                     " m above the ground)");
+    t.add("directions", std::to_string(p.directions.size()) + " every " + fmtg(st.step) + "°, " +
+                            std::to_string(p.directions_with_data) + " with terrain");
+    t.add("reach", reachText(ctx.reach_m));
+    auto at = [](double angle, double azimuth, double distance) {
+        return deg(angle) + " at azimuth " + deg(azimuth, 1) + ", " +
+               (std::isfinite(distance) ? formatDistance(distance) : "-");
+    };
+    t.add("lowest horizon", at(p.lowest_angle_deg, p.lowest_azimuth_deg, p.lowest_distance_m));
+    t.add("highest horizon", at(p.highest_angle_deg, p.highest_azimuth_deg, p.highest_distance_m));
+    t.add("mean horizon angle", deg(p.mean_angle_deg));
+    t.add("open sectors", sector_text.empty() ? "none (the horizon is at or above the eye's "
+                                                "horizontal in every direction)"
+                                              : sector_text +
+                                                    " (horizon below the eye's "
+                                                    "horizontal)");
+    t.add("sky-view factor",
+          std::isfinite(p.sky_view_factor) ? formatNumber(p.sky_view_factor, 4) : "-");
+    t.add("dip", deg(p.dip_deg) + " (largest depression of the terrain horizon)");
+    t.add("sea-horizon dip",
+          deg(p.sea_horizon_dip_deg) + " for an eye " + formatNumber(p.eye_m, 1) +
+              " m above the datum" +
+              (p.sea_horizon_dip_deg > 0
+                   ? ", sea horizon at " + formatDistance(p.sea_horizon_distance_m)
+                   : ""));
+    t.add("earth", ctx.run.earth_model + ", refraction k = " + fmtg(ctx.run.refraction));
+    return t.render();
+}
+
+/// The CSV of a spot's horizon: one row per direction, the horizon point in --crs.
+template <typename ToUser>
+std::string spotCsv(const HorizonProfile& p, const ToUser& toUser) {
+    std::string csv = "azimuth_deg,angle_deg,distance_m,x,y,elevation_m\n";
+    for (const auto& d : p.directions) {
+        csv += printfNumber("%.4f", d.azimuth_deg);
+        if (d.sample.found) {
+            const MapPoint m = toUser(d.sample.col, d.sample.row);
+            csv += "," + printfNumber("%.6f", d.sample.angle_deg) + "," +
+                   printfNumber("%.3f", d.sample.distance_m) + "," + fmtg(m.x) + "," + fmtg(m.y) +
+                   "," + printfNumber("%.3f", d.sample.elevation_m);
+        } else {
+            csv += ",,,,,";
+        }
+        csv += "\n";
+    }
+    return csv;
+}
+
+RunReport runPoint(const RunEnv& env, const HorizonRunOptions& st) {
+    Spot s;
+    s.given = checkSpotOptions(st);
+    RunContext ctx = prepareRun(env, "horizon", st.common, {{"--csv", st.csv}, {"--plot", st.plot}},
+                                {}, DemCells::Later);
+    s.cell = placeObserver(ctx, "--at", s.given.x, s.given.y, ctx.observer_height_m, "spot");
+    readDemWindow(ctx, workWindow(ctx, {s.cell}));  // the cells within reach of the spot
+    requireData(ctx, "--at", s.given, s.cell);
+    const GridGeometry& g = ctx.dem.geometry;  // of the window read: horizon points are in it
+    const Observer spot_w = inWindow(ctx, s.cell);
+    HorizonOptions opt;
+    opt.observer_height_m = ctx.observer_height_m;
+    opt.reach_m = ctx.reach_m;
+    opt.latitude_deg = s.cell.latitude_deg;
+    opt.method = HorizonMethod::Reference;
+    ctx.run.method = "reference";
+    ctx.run.extra["AT"] = fmtg(s.given.x) + "," + fmtg(s.given.y);
+    ctx.run.extra["STEP_DEG"] = fmtg(st.step);
+    s.p = horizonProfile(ctx.dem.z, g, ctx.earth, spot_w.col, spot_w.row, st.step, opt,
+                         *ctx.progress);
+
+    // Horizon points back in the coordinates of --at.
+    std::unique_ptr<CoordinateTransform> back;
+    if (!st.common.crs.empty())
+        back = std::make_unique<CoordinateTransform>(ctx.dem.crs.wkt, st.common.crs);
+    auto toUser = [&](double col, double row) {
+        MapPoint m{g.mapX(col), g.mapY(row)};
+        return back ? back->apply(m) : m;
+    };
+    s.centre = toUser(spot_w.col, spot_w.row);
+
+    nlohmann::json j = summaryBase(ctx.run);
+    nlohmann::json sectors;
+    const std::string sector_text = openSectors(s.p, sectors);
+    j["spot"] = {{"x", s.given.x},           {"y", s.given.y},       {"col", s.cell.col},
+                 {"row", s.cell.row},        {"cell_x", s.centre.x}, {"cell_y", s.centre.y},
+                 {"ground_m", s.p.ground_m}, {"eye_m", s.p.eye_m}};
+    j["horizon"] = spotJson(st, s, sectors);
+    if (!st.csv.empty())
+        j["outputs"]["csv"] = st.csv;
+    if (!st.plot.empty())
+        j["outputs"]["plot"] = st.plot;
+    const std::string table = spotTable(ctx, st, s, sector_text);
+    if (!st.csv.empty())
+        writeTextFile(ctx, st.csv, spotCsv(s.p, toUser));
+    if (!st.plot.empty()) {
+        writeTextFile(ctx, st.plot,
+                      svgPanorama(s.p, "Horizon from " + fmtg(s.given.x) + ", " + fmtg(s.given.y) +
+                                           " (eye " + formatNumber(s.p.eye_m, 1) + " m)"));
+    }
+    return finishRun(ctx, j, table);
+}
+
+}  // namespace
+
+CommandHelp HorizonRun::help() const {
+    return {"horizon",
+            "the horizon of every cell in N directions (angles, distances, sky-view factor, dip), "
+            "or the 360° horizon of one spot (--at) with a CSV, an SVG panorama and a summary",
+            "\nEvery cell: the eye stands at the cell's centre, --observer-height above its "
+            "ground.\n"
+            "  A direction with no terrain sample with data inside the DEM within reach is -9999 "
+            "in\n"
+            "  that band and is left out of the sky-view factor and the dip. Output is streamed\n"
+            "  direction by direction: memory does not grow with N. A DEM whose run does not fit\n"
+            "  --memory is worked tile by tile, each tile read with a halo of --reach (the same\n"
+            "  results); without --reach it is refused.\n"
+            "One spot (--at): the horizon every --step degrees, the lowest and highest horizon, "
+            "the\n"
+            "  sectors where the horizon is below the horizontal, the mean angle, the sky-view "
+            "factor\n"
+            "  and the dip of the sea horizon for the eye's height.\n"};
+}
+
+OptionTable HorizonRun::declare() {
+    HorizonRunOptions& st = options;
+    OptionTable t = commonOptions(st.common, kAllCommon);
+    removeOption(t, "--target-height");  // a horizon has no target: the option would do nothing
+    findOption(t, "--method").help =
+        "engine for the rasters: fast (default: scan lines find the horizon, the cell's own ray "
+        "is sampled exactly there), or reference (every ray marched cell by cell; slow). --at "
+        "always uses the reference";
+    const std::string cells = "Every cell", spot = "One spot";
+    t.push_back(OptionDecl("-o,--output", &st.output,
+                           "Float32 raster of N bands: band i + 1 is the horizon angle at azimuth "
+                           "i*360/N, degrees above the eye's horizontal; -9999 no data",
+                           cells)
+                    .fileType());
+    t.push_back(OptionDecl("--directions", &st.directions,
+                           "N, the number of azimuths i*360/N clockwise from grid north, 1 to 3600",
+                           cells)
+                    .showDefault()
+                    .checkedBy(wholeNumberCheck(1, kMaxHorizonDirections))
+                    .noteGiven(&st.directions_given));
+    t.push_back(OptionDecl("--distance", &st.distance,
+                           "Float32 raster of N bands: ground distance to the horizon, metres",
+                           cells)
+                    .fileType());
+    t.push_back(OptionDecl("--svf", &st.svf,
+                           "Float32 raster: sky-view factor, 1 - mean over the directions of "
+                           "sin(max(angle, 0))",
+                           cells)
+                    .fileType());
+    t.push_back(OptionDecl("--dip", &st.dip,
+                           "Float32 raster: largest depression of the horizon below the eye's "
+                           "horizontal over the directions, degrees (negative: above it all round)",
+                           cells)
+                    .fileType());
+    t.push_back(OptionDecl(
+        "--at", &st.at, "X,Y in --crs: the 360° horizon of the cell that holds this point", spot));
+    t.push_back(OptionDecl("--step", &st.step, "azimuth step of --at, degrees, 0.05 to 90", spot)
+                    .showDefault()
+                    .checkedBy(decimalCheck(0.05, 90, "degrees"))
+                    .noteGiven(&st.step_given));
+    t.push_back(OptionDecl("--csv", &st.csv,
+                           "CSV of the horizon of --at: azimuth_deg,angle_deg,distance_m,x,y,"
+                           "elevation_m (x, y of the horizon point in --crs)",
+                           spot)
+                    .fileType());
+    t.push_back(OptionDecl("--plot", &st.plot,
+                           "SVG panorama of the horizon of --at with the eye's horizontal and the "
+                           "sea-horizon dip",
+                           spot)
+                    .fileType());
+    return t;
+}
+
+RunReport HorizonRun::run(const RunEnv& env) {
+    return options.at.empty() ? runGrid(env, options) : runPoint(env, options);
+}
+
+}  // namespace lookfar::run
