@@ -2,6 +2,7 @@
 
 #include <pybind11/eval.h>
 
+#include <limits>
 #include <memory>
 #include <string>
 #include <vector>
@@ -9,6 +10,7 @@
 #include "Args.hpp"
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/earth/EarthModel.hpp"
+#include "lookfar/run/HorizonRun.hpp"
 #include "lookfar/run/IntervisRun.hpp"
 #include "lookfar/run/LinkRun.hpp"
 #include "lookfar/run/SelectRun.hpp"
@@ -28,6 +30,7 @@ enum class Kind {
     Raster,   ///< a numpy array of the raster's type
     Columns,  ///< a CSV as a dict of columns (numbers as numpy arrays, text as lists)
     File,     ///< written only where the caller asks (SVG, GeoJSON …): no attribute
+    Bands,    ///< every band of a raster, bands × rows × cols (also for one band)
 };
 
 /// One output of a function: the attribute of the result, the command's option, the file name in
@@ -47,6 +50,28 @@ struct Output {
     bool always;       ///< made even when not asked for (the command's main output)
     std::string path;  ///< where the run writes it, "" for none
 };
+
+/// Every band of a raster as bands × rows × cols, also when it has one band.
+py::array allBands(const std::string& path) {
+    py::array a = readRasterArray(path, 0);
+    if (a.ndim() == 2)
+        a = a.reshape({py::ssize_t(1), a.shape(0), a.shape(1)});
+    return a;
+}
+
+/// The no-data value of the horizon rasters (docs/design.md).
+constexpr float kHorizonNoData = -9999.0f;
+
+/// A float32 array with `nodata` cells made NaN (None stays None).
+py::object noDataAsNan(const py::object& value, float nodata) {
+    if (value.is_none())
+        return value;
+    py::array_t<float> a = value.cast<py::array_t<float>>();
+    float* p = a.mutable_data();
+    for (py::ssize_t i = 0; i < a.size(); ++i)
+        p[i] = p[i] == nodata ? std::numeric_limits<float>::quiet_NaN() : p[i];
+    return std::move(a);
+}
 
 /// A function's run: the DEM, the command's options being set, and its outputs.
 class Call {
@@ -79,7 +104,9 @@ class Call {
             if (o.kind == Kind::File)
                 continue;
             py::object value = py::none();
-            if (!o.path.empty())
+            if (!o.path.empty() && o.kind == Kind::Bands)
+                value = allBands(o.path);
+            else if (!o.path.empty())
                 value = o.kind == Kind::Raster ? readRasterArray(o.path) : columns(o.path);
             r.attr(o.attr.c_str()) = value;
         }
@@ -238,6 +265,107 @@ no-data; None with sites), .count (uint16: sites that see the cell, 65535 no dat
 without sites), .margin (float32 metres: DEM + target height minus the limiting sightline,
 >= 0 visible, NaN no data; None unless asked for), .angle (float32 degrees: elevation angle
 from the eye to the target point; None unless asked for), .summary, .table.)")
+            .c_str());
+
+    m.def(
+        "horizon",
+        [](const py::object& dem, const py::object& directions, const py::object& observer_height,
+           const py::object& reach, const py::object& refraction, const py::object& earth_model,
+           const py::object& earth_radius, const py::object& crs, const py::object& method,
+           const py::object& threads, const py::object& distance, const py::object& svf,
+           const py::object& dip, const py::object& memory, const py::object& output,
+           bool overwrite, const py::object& progress) {
+            run::HorizonRun command;
+            Call call(command, dem);
+            const CommonArgs common{observer_height, py::none(), reach,  refraction, earth_model,
+                                    earth_radius,    crs,        method, threads};
+            setCommon(call.set(), call.dem(), common);
+            call.set().set("--directions", directions);
+            call.set().set("--memory", memory);
+            call.add(Output("angle", "--output", "angle.tif", Kind::Bands, output, true));
+            call.add(Output("distance", "--distance", "distance.tif", Kind::Bands, distance));
+            call.add(Output("svf", "--svf", "svf.tif", Kind::Raster, svf));
+            call.add(Output("dip", "--dip", "dip.tif", Kind::Raster, dip));
+            py::object r = call.run(overwrite, progress);
+            for (const char* name : {"angle", "distance", "svf", "dip"})
+                r.attr(name) = noDataAsNan(r.attr(name), kHorizonNoData);
+            return r;
+        },
+        py::arg("dem"), py::arg("directions") = 32, py::arg("observer_height") = 1.7,
+        py::arg("reach") = py::none(), py::arg("refraction") = EarthModel::kDefaultRefraction,
+        py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
+        py::arg("method") = "fast", py::arg("threads") = py::none(), py::arg("distance") = false,
+        py::arg("svf") = false, py::arg("dip") = false, py::arg("memory") = py::none(),
+        py::arg("output") = py::none(), py::arg("overwrite") = false,
+        py::arg("progress") = py::none(),
+        (std::string(R"(The horizon of every cell in N directions (lookfar horizon -o).
+
+    dem: a path or a lookfar.Dem.
+    directions: N, the azimuths i*360/N degrees clockwise from grid north, 1 to 3600; default 32.
+    observer_height: the eye above the ground of each cell, metres; default 1.7.
+    distance: True for the .distance array; a path also writes it there (Float32 GeoTIFF).
+    svf, dip: True for the .svf (sky-view factor) and .dip arrays; a path also writes it there.
+    memory: the memory budget, bytes or a text such as "512M"; a DEM whose run does not fit is
+        worked tile by tile (reach is then needed); None (the default) is half the physical
+        memory.
+    output: a path to write the angles GeoTIFF too, as the CLI's -o (-9999 for no data there).
+    method: "fast" (default) or "reference" (every ray marched cell by cell; same result,
+        slow).)") +
+         kGeometryDoc + R"(
+
+Returns a Result: .angle (float32, directions × rows × cols: the horizon angle at azimuth
+i*360/N, degrees above the eye's local horizontal), .distance (float32, the same shape: ground
+distance to the horizon-defining terrain, metres; None unless asked for), .svf (float32 rows ×
+cols: 1 - mean over the directions of sin(max(angle, 0)); None unless asked for), .dip (float32
+rows × cols: largest depression of the horizon below the eye's horizontal, degrees, negative
+where it is above it all round; None unless asked for), .summary, .table. NaN where the
+rasters hold -9999: no terrain with data in that direction within reach.)")
+            .c_str());
+
+    m.def(
+        "horizon_at",
+        [](const py::object& dem, const py::object& at, const py::object& step,
+           const py::object& observer_height, const py::object& reach, const py::object& refraction,
+           const py::object& earth_model, const py::object& earth_radius, const py::object& crs,
+           const py::object& threads, const py::object& csv, const py::object& plot, bool overwrite,
+           const py::object& progress) {
+            run::HorizonRun command;
+            Call call(command, dem);
+            const CommonArgs common{observer_height, py::none(),   reach, refraction,
+                                    earth_model,     earth_radius, crs,   py::none(),
+                                    threads};
+            setCommon(call.set(), call.dem(), common);
+            call.set().set("--at", pointText(at, "--at"));
+            call.set().set("--step", step);
+            call.add(Output("horizon", "--csv", "horizon.csv", Kind::Columns, csv, true));
+            call.add(Output("plot", "--plot", "horizon.svg", Kind::File, plot));
+            py::object r = call.run(overwrite, progress);
+            const py::object columns = r.attr("horizon");
+            r.attr("azimuth") = columns["azimuth_deg"];
+            r.attr("angle") = columns["angle_deg"];
+            r.attr("distance") = columns["distance_m"];
+            return r;
+        },
+        py::arg("dem"), py::arg("at"), py::arg("step") = 1.0, py::arg("observer_height") = 1.7,
+        py::arg("reach") = py::none(), py::arg("refraction") = EarthModel::kDefaultRefraction,
+        py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
+        py::arg("threads") = py::none(), py::arg("csv") = py::none(), py::arg("plot") = py::none(),
+        py::arg("overwrite") = false, py::arg("progress") = py::none(),
+        (std::string(R"(The 360° horizon of one spot (lookfar horizon --at).
+
+    dem: a path or a lookfar.Dem.
+    at: (x, y) of the spot in crs (the eye stands on the centre of the cell that holds it).
+    step: the azimuth step, degrees, 0.05 to 90; default 1.
+    observer_height: the eye above the ground, metres; default 1.7.
+    csv: a path to write the horizon CSV too; plot: a path for the SVG panorama.)") +
+         kGeometryDoc + R"(
+
+Returns a Result: .azimuth (degrees clockwise from grid north), .angle (degrees above the eye's
+horizontal) and .distance (ground distance to the horizon point, metres) as numpy arrays, one
+value per direction, NaN where no terrain lies within the DEM and reach; .horizon (every column
+of the CSV: azimuth_deg, angle_deg, distance_m, x, y, elevation_m; x, y in crs); .summary (with
+the lowest and highest horizon, the open sectors, the sky-view factor and the sea-horizon dip),
+.table.)")
             .c_str());
 
     m.def(
