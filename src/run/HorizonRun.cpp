@@ -2,6 +2,7 @@
 
 #include <strings.h>
 
+#include <cctype>
 #include <cmath>
 #include <cstring>
 #include <memory>
@@ -47,6 +48,8 @@ class RasterSink final : public HorizonSink {
                 w->blockSize(block_cols_, block_rows_);
         }
     }
+    bool any_horizon = false;  ///< a cell of a rectangle written had a horizon
+
     bool wantsRectangles() const override { return angle_ || distance_; }
     void rectangle(int index, int col0, int row0, int width, int height, int stride,
                    const float* angle, const float* distance) override {
@@ -76,6 +79,7 @@ class RasterSink final : public HorizonSink {
         for (int r = 0; r < height; ++r) {
             for (int c = 0; c < width; ++c) {
                 const float v = data[static_cast<std::size_t>(r) * stride + c];
+                any_horizon = any_horizon || !std::isnan(v);
                 buf_[static_cast<std::size_t>(r) * out_w + c] = std::isnan(v) ? kHorizonNoData : v;
             }
         }
@@ -317,6 +321,28 @@ RunReport finishGrid(RunContext& ctx, const HorizonRunOptions& st, const Horizon
     return finishRun(ctx, j, t.render());
 }
 
+bool hasData(const Grid<float>& z) {
+    for (std::size_t i = 0; i < z.size(); ++i) {
+        if (!std::isnan(z.data()[i]))
+            return true;
+    }
+    return false;
+}
+
+/// Says on stderr why every cell of the rasters is no data (issue 12 item 11): a DEM with no
+/// data at all, or no cell with terrain around it within the DEM (a DEM of one cell).
+void warnWithoutHorizon(const RunContext& ctx, bool any_data, bool any_horizon) {
+    if (!any_data) {
+        ctx.progress->warn(ctx.run.dem_path +
+                           ": every cell is no data, so no cell has a horizon: the rasters hold "
+                           "only no data (-9999)");
+    } else if (!any_horizon) {
+        ctx.progress->warn(std::string("no cell has terrain with data around it within the DEM") +
+                           (std::isfinite(ctx.reach_m) ? " and --reach" : "") +
+                           " in any direction: the rasters hold only no data (-9999)");
+    }
+}
+
 RunReport runGrid(const RunEnv& env, const HorizonRunOptions& st) {
     HorizonOptions opt = checkGridOptions(st);
     RunContext ctx = prepareRun(env, "horizon", st.common,
@@ -359,6 +385,7 @@ RunReport runGrid(const RunEnv& env, const HorizonRunOptions& st) {
 
     RasterSink sink(angle_w, dist_w);
     TileOutputs outputs(svf_w, dip_w);
+    bool any_data = false;  // a cell of the DEM read holds data
     {
         // The rasters are compressed and written on a thread of their own while the engine
         // computes the next cells; with --threads 1 on the engine's thread, so that one core
@@ -370,18 +397,26 @@ RunReport runGrid(const RunEnv& env, const HorizonRunOptions& st) {
         runHorizonTiles(
             ctx.grid, ctx.earth, opt, plan,
             [&](int c0, int r0, int w, int h) {
-                return readDem(ctx.options.dem, demReadOptions(ctx, {c0, r0, w, h})).z;
+                Grid<float> z = readDem(ctx.options.dem, demReadOptions(ctx, {c0, r0, w, h})).z;
+                any_data = any_data || hasData(z);
+                return z;
             },
             outputs, *ctx.progress);
         if (async)
             async->finish();
     }
+    warnWithoutHorizon(
+        ctx, any_data,
+        sink.any_horizon || outputs.svf_stats.cells() > 0 || outputs.dip_stats.cells() > 0);
     return finishGrid(ctx, st, opt, plan, outputs, rasters);
 }
 
 // ---------------------------------------------------------------------------------------------
 
-std::string svgPanorama(const HorizonProfile& p, const std::string& title) {
+/// The panorama of a spot's horizon; `no_terrain` (when not "") is written across it instead of
+/// a horizon.
+std::string svgPanorama(const HorizonProfile& p, const std::string& title,
+                        const std::string& no_terrain) {
     // Vertical range: the terrain, the horizontal and the sea-horizon dip, with a margin.
     double lo = -p.sea_horizon_dip_deg, hi = 0;
     for (const auto& d : p.directions) {
@@ -440,6 +475,11 @@ std::string svgPanorama(const HorizonProfile& p, const std::string& title) {
         const char* anchor = k == 0 ? "start" : (k == 8 ? "end" : "middle");
         plot.text(45.0 * k, y1, kPoints[k], "#555555", anchor, k == 0 ? 4 : (k == 8 ? -4 : 0), 14);
     }
+    if (!no_terrain.empty()) {
+        std::string sentence = no_terrain;
+        sentence[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(sentence[0])));
+        plot.text(180.0, (y0 + y1) / 2, sentence, "#8c2d04", "middle");
+    }
     if (std::isfinite(p.highest_angle_deg)) {
         const bool right = p.highest_azimuth_deg > 270;
         plot.marker(p.highest_azimuth_deg, p.highest_angle_deg, "", "#8c2d04");
@@ -464,6 +504,16 @@ MapPoint checkSpotOptions(const HorizonRunOptions& st) {
         throw UsageError("--step: " + printfNumber("%g", st.step) + "° is outside 0.05° to 90°");
     }
     return parsePoint(st.at, "--at");
+}
+
+/// What a spot with no terrain in any direction is told (issue 12 item 11: a DEM of one cell, or
+/// only no data around the spot): "" when some direction has terrain.
+std::string noTerrainText(const RunContext& ctx, const HorizonProfile& p) {
+    if (p.directions_with_data > 0)
+        return "";
+    return std::string("there is no terrain within the DEM") +
+           (std::isfinite(ctx.reach_m) ? " and --reach" : "") +
+           " in any direction: no cell with data around the spot";
 }
 
 /// The open sectors of `p` as the summary's array and the table's text ("" for none).
@@ -531,11 +581,14 @@ std::string spotTable(const RunContext& ctx, const HorizonRunOptions& st, const 
     t.add("lowest horizon", at(p.lowest_angle_deg, p.lowest_azimuth_deg, p.lowest_distance_m));
     t.add("highest horizon", at(p.highest_angle_deg, p.highest_azimuth_deg, p.highest_distance_m));
     t.add("mean horizon angle", deg(p.mean_angle_deg));
-    t.add("open sectors", sector_text.empty() ? "none (the horizon is at or above the eye's "
-                                                "horizontal in every direction)"
-                                              : sector_text +
-                                                    " (horizon below the eye's "
-                                                    "horizontal)");
+    const std::string no_terrain = noTerrainText(ctx, p);
+    if (!no_terrain.empty())
+        t.add("open sectors", "- (" + no_terrain + ")");
+    else if (sector_text.empty())
+        t.add("open sectors",
+              "none (the horizon is at or above the eye's horizontal in every direction)");
+    else
+        t.add("open sectors", sector_text + " (horizon below the eye's horizontal)");
     t.add("sky-view factor",
           std::isfinite(p.sky_view_factor) ? formatNumber(p.sky_view_factor, 4) : "-");
     t.add("dip", deg(p.dip_deg) + " (largest depression of the terrain horizon)");
@@ -606,6 +659,9 @@ RunReport runPoint(const RunEnv& env, const HorizonRunOptions& st) {
                  {"row", s.cell.row},        {"cell_x", s.centre.x}, {"cell_y", s.centre.y},
                  {"ground_m", s.p.ground_m}, {"eye_m", s.p.eye_m}};
     j["horizon"] = spotJson(st, s, sectors);
+    const std::string no_terrain = noTerrainText(ctx, s.p);
+    if (!no_terrain.empty())
+        j["horizon"]["no_terrain"] = no_terrain;
     if (!st.csv.empty())
         j["outputs"]["csv"] = st.csv;
     if (!st.plot.empty())
@@ -615,8 +671,10 @@ RunReport runPoint(const RunEnv& env, const HorizonRunOptions& st) {
         writeTextFile(ctx, st.csv, spotCsv(s.p, toUser));
     if (!st.plot.empty()) {
         writeTextFile(ctx, st.plot,
-                      svgPanorama(s.p, "Horizon from " + fmtg(s.given.x) + ", " + fmtg(s.given.y) +
-                                           " (eye " + formatNumber(s.p.eye_m, 1) + " m)"));
+                      svgPanorama(s.p,
+                                  "Horizon from " + fmtg(s.given.x) + ", " + fmtg(s.given.y) +
+                                      " (eye " + formatNumber(s.p.eye_m, 1) + " m)",
+                                  no_terrain));
     }
     return finishRun(ctx, j, table);
 }

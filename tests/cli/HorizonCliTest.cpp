@@ -328,3 +328,83 @@ TEST(HorizonBadInputTest, MissingDemAndExistingOutput) {
     EXPECT_EQ(readFile(out), "keep me");
     EXPECT_EQ(dir.entries().size(), 1u);  // no svf.tif, no temporary files
 }
+
+namespace {
+
+/// A window of nodata_hole.tif (100 × 100 cells of 10 m from 430000, 5590000; no data in rows and
+/// columns 45-54, test_rasters/README.md) copied into `dir`.
+std::string holeWindow(const ScratchDir& dir, const std::string& name, int col, int row, int size) {
+    GDALAllRegister();
+    GDALDatasetH src = GDALOpen(testRaster("nodata_hole.tif").c_str(), GA_ReadOnly);
+    EXPECT_NE(src, nullptr);
+    if (!src)
+        return "";
+    const std::string path = dir.file(name);
+    const bool ok = translateRaster(src, path,
+                                    {"-srcwin", std::to_string(col), std::to_string(row),
+                                     std::to_string(size), std::to_string(size)});
+    GDALClose(src);
+    return ok ? path : "";
+}
+
+}  // namespace
+
+// Issue 12 item 11: the spot of a one-cell DEM has no terrain in any direction. It was reported as
+// "open sectors none (the horizon is at or above the eye's horizontal in every direction)", which
+// is false; the table, the summary and the panorama now say there is no terrain within the DEM.
+TEST(HorizonNoTerrainTest, OneCellDemSaysThereIsNoTerrainWithinTheDem) {
+    ScratchDir dir;
+    const std::string dem = holeWindow(dir, "one.tif", 0, 0, 1);
+    ASSERT_FALSE(dem.empty());
+    const std::vector<std::string> args = {
+        "horizon", dem, "--at", "430005,5589995", "--plot", dir.file("p.svg"), "--quiet"};
+    CliResult r = runLookfar(args);
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.out.find("open sectors        - (there is no terrain within the DEM in any "
+                         "direction"),
+              std::string::npos)
+        << r.out;
+    EXPECT_EQ(r.out.find("at or above the eye's horizontal"), std::string::npos) << r.out;
+    EXPECT_NE(readFile(dir.file("p.svg")).find("There is no terrain within the DEM"),
+              std::string::npos);
+    const nlohmann::json j = runJson({"horizon", dem, "--at", "430005,5589995", "--reach", "5km"});
+    EXPECT_EQ(j["horizon"]["directions_with_data"], 0);
+    EXPECT_EQ(j["horizon"]["open_sectors"].size(), 0u);
+    EXPECT_EQ(j["horizon"]["no_terrain"],
+              "there is no terrain within the DEM and --reach in any direction: no cell with data "
+              "around the spot");
+    // A spot with terrain around it has no such key.
+    const nlohmann::json k = runJson(
+        {"horizon", testRaster("nodata_hole.tif"), "--at", "430005,5589995", "--step", "10"});
+    EXPECT_GT(k["horizon"]["directions_with_data"].get<int>(), 0);
+    EXPECT_FALSE(k["horizon"].contains("no_terrain"));
+}
+
+// Issue 12 item 11: `horizon -o` on a DEM with no data at all wrote rasters of no data without a
+// word; a DEM whose cells have no terrain around them (one cell) the same. Both say so on stderr,
+// also with --quiet, and still write their (no-data) rasters.
+TEST(HorizonNoTerrainTest, RastersWithoutAnyHorizonAreExplainedOnStderr) {
+    ScratchDir dir;
+    const std::string hole = holeWindow(dir, "hole.tif", 45, 45, 10);
+    const std::string one = holeWindow(dir, "one.tif", 0, 0, 1);
+    ASSERT_FALSE(hole.empty() || one.empty());
+    CliResult r = runLookfar({"horizon", hole, "-o", dir.file("h.tif"), "--quiet"});
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.err.find("hole.tif: every cell is no data, so no cell has a horizon: the rasters "
+                         "hold only no data (-9999)"),
+              std::string::npos)
+        << r.err;
+    r = runLookfar({"horizon", one, "--svf", dir.file("s.tif"), "--reach", "1km", "--quiet"});
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.err.find("no cell has terrain with data around it within the DEM and --reach in "
+                         "any direction: the rasters hold only no data (-9999)"),
+              std::string::npos)
+        << r.err;
+    const Raster s = readRaster(dir.file("s.tif"));
+    EXPECT_EQ(s.values[0][0], -9999.0);
+    // A DEM with horizons says nothing of the kind.
+    r = runLookfar({"horizon", testRaster("nodata_hole.tif"), "-o", dir.file("n.tif"),
+                    "--directions", "4", "--quiet"});
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_EQ(r.err, "");
+}

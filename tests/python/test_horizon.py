@@ -129,3 +129,18 @@ def test_horizon_of_a_wall_from_a_numpy_terrain(lookfar):
     assert np.allclose(r.distance[1, 10, :20], d, atol=1e-3)
     # The last column looks east past the DEM's edge: no terrain, NaN (-9999 in the raster).
     assert np.isnan(r.angle[1, :, 30]).all()
+
+
+def test_no_terrain_is_said_not_hidden(lookfar):
+    # Issue 12 item 11: a spot on a one-cell DEM has no terrain in any direction; a DEM of no data
+    # gives rasters of no data, with a warning (the CLI's stderr sentence).
+    one = lookfar.Dem.from_array(np.array([[12.0]]), (500000, 10, 0, 6000000, 0, -10),
+                                 "EPSG:32630")
+    r = lookfar.horizon_at(one, (500005, 5999995), step=10)
+    assert r.summary["horizon"]["no_terrain"].startswith("there is no terrain within the DEM")
+    assert np.isnan(r.angle).all() and len(r.azimuth) == 36
+    empty = lookfar.Dem.from_array(np.full((5, 5), np.nan), (500000, 10, 0, 6000000, 0, -10),
+                                   "EPSG:32630")
+    with pytest.warns(UserWarning, match="every cell is no data, so no cell has a horizon"):
+        g = lookfar.horizon(empty, directions=4)
+    assert np.isnan(g.angle).all()
