@@ -7,6 +7,10 @@
 
 namespace lookfar {
 
+double summaryMetres(double metres) {
+    return std::isfinite(metres) ? std::round(metres * 1000.0) / 1000.0 : metres;
+}
+
 nlohmann::json finiteOrNull(double value) {
     if (!std::isfinite(value))
         return nullptr;

@@ -266,9 +266,9 @@ nlohmann::json summaryJson(const RunContext& ctx, const IntervisRunOptions& s,
         list.push_back({{"name", stations[i].name},
                         {"x", placed.points_dem[i].x},
                         {"y", placed.points_dem[i].y},
-                        {"ground_m", ground},
+                        {"ground_m", summaryMetres(ground)},
                         {"height_m", stations[i].height_m},
-                        {"eye_m", ground + stations[i].height_m},
+                        {"eye_m", summaryMetres(ground + stations[i].height_m)},
                         {"sees", t.sees[i]},
                         {"seen_by", t.seen_by[i]}});
     }

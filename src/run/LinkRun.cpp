@@ -317,9 +317,9 @@ nlohmann::json endJson(const MapPoint& p, const MapPoint& ll, double ground, dou
                           {"y", p.y},
                           {"lon", ll.x},
                           {"lat", ll.y},
-                          {"ground_m", ground},
+                          {"ground_m", summaryMetres(ground)},
                           {"height_m", h},
-                          {"antenna_m", antenna},
+                          {"antenna_m", summaryMetres(antenna)},
                           {"azimuth_grid_deg", az_grid},
                           {"azimuth_true_deg", az_true},
                           {"elevation_angle_deg", elev}};

@@ -264,6 +264,12 @@ Observer inWindow(const RunContext& ctx, Observer o) {
     return o;
 }
 
+std::string coordinateCrs(const RunContext& ctx) {
+    if (!ctx.options.crs.empty())
+        return ctx.options.crs;
+    return ctx.dem.crs.epsg.empty() ? ctx.dem.crs.name : ctx.dem.crs.epsg;
+}
+
 float groundAt(const RunContext& ctx, int col, int row) {
     return ctx.dem.z(col - ctx.window.col0, row - ctx.window.row0);
 }

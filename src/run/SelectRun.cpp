@@ -173,8 +173,8 @@ nlohmann::json candidatesJson(const RunContext& ctx, const SiteSelectionResult& 
         nlohmann::json e = {{"name", c.name},
                             {"x", placed.rows[i].x},
                             {"y", placed.rows[i].y},
-                            {"ground_m", ground},
-                            {"eye_m", ground + c.height_m},
+                            {"ground_m", summaryMetres(ground)},
+                            {"eye_m", summaryMetres(ground + c.height_m)},
                             {"visible_area_m2", res.alone_area_m2[i]},
                             {"rank", rank_of[i] ? nlohmann::json(rank_of[i]) : nullptr}};
         if (res.weighted)

@@ -251,7 +251,7 @@ RunReport runSignalSites(const RunEnv& env, const SignalRunOptions& s) {
     run.observer_height_m = tx_h;
     run.target_height_m = rx_h;
     run.method = "reference";
-    run.extra["COORDINATE_CRS"] = s.common.crs.empty() ? "the DEM's" : s.common.crs;
+    run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
     run.extra["SITES"] = s.sites;
     run.extra["SITE_COUNT"] = std::to_string(sites.size());
     run.extra["RX_HEIGHT_M"] = fmtg(rx_h);
@@ -558,7 +558,7 @@ RunReport SignalRun::run(const RunEnv& env) {
     run.observer_height_m = tx_h;
     run.target_height_m = rx_h;
     run.method = "reference";
-    run.extra["COORDINATE_CRS"] = s.common.crs.empty() ? "the DEM's" : s.common.crs;
+    run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
     run.extra["TRANSMITTER"] = tx.name;
     run.extra["TRANSMITTER_XY"] = fmtg(given.x) + "," + fmtg(given.y);
     run.extra["TRANSMITTER_CELL"] = std::to_string(tx.col) + "," + std::to_string(tx.row);
@@ -624,9 +624,10 @@ RunReport SignalRun::run(const RunEnv& env) {
     const double eff_radius = ctx.earth.shape() == EarthShape::Flat
                                   ? std::numeric_limits<double>::infinity()
                                   : run.earth_radius_m / (1.0 - run.refraction);
-    j["transmitter"] = {
-        {"name", tx.name}, {"x", given.x},       {"y", given.y},     {"col", tx.col},
-        {"row", tx.row},   {"ground_m", ground}, {"height_m", tx_h}, {"antenna_m", ground + tx_h}};
+    j["transmitter"] = {{"name", tx.name},  {"x", given.x},
+                        {"y", given.y},     {"col", tx.col},
+                        {"row", tx.row},    {"ground_m", summaryMetres(ground)},
+                        {"height_m", tx_h}, {"antenna_m", summaryMetres(ground + tx_h)}};
     j["radio"] = {
         {"frequency_mhz", s.frequency_mhz},
         {"rx_height_m", rx_h},

@@ -48,8 +48,8 @@ nlohmann::json observerJson(const RunContext& ctx, const PlacedSite& p, const Vi
     return {{"name", p.observer.name},
             {"x", p.x},
             {"y", p.y},
-            {"ground_m", p.ground_m},
-            {"eye_m", p.ground_m + p.observer.height_m},
+            {"ground_m", summaryMetres(p.ground_m)},
+            {"eye_m", summaryMetres(p.ground_m + p.observer.height_m)},
             {"height_m", p.observer.height_m},
             {"col", p.observer.col},
             {"row", p.observer.row},
@@ -114,7 +114,7 @@ std::vector<PlacedSite> placeViewshedObservers(RunContext& ctx, const ViewshedRu
 void describeObservers(RunContext& ctx, const ViewshedRunOptions& st, bool single,
                        const std::vector<PlacedSite>& placed) {
     RunDescription& run = ctx.run;
-    run.extra["COORDINATE_CRS"] = st.common.crs.empty() ? "the DEM's" : st.common.crs;
+    run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
     if (single) {
         const PlacedSite& p = placed.front();
         run.extra["OBSERVER"] = p.observer.name;

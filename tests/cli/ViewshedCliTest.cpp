@@ -298,6 +298,10 @@ TEST(ViewshedCliTest, SummaryKeysRasterValuesAndMetadata) {
     EXPECT_DOUBLE_EQ(j["parameters"]["reach_m"].get<double>(), 8000.0);
     EXPECT_NEAR(o["ground_m"].get<double>(), 244.7, 0.01);  // test_rasters/README.md
     EXPECT_NEAR(o["eye_m"].get<double>(), 259.7, 0.01);
+    // Heights to the millimetre, written as typed, not as the Float32 cell's binary value
+    // (issue 15 item 8: 244.6999969482422 and 259.6999969482422 before).
+    EXPECT_EQ(o["ground_m"].dump(), "244.7");
+    EXPECT_EQ(o["eye_m"].dump(), "259.7");
     EXPECT_LE(o["farthest_visible_m"].get<double>(), 8000.0);
 
     const Raster v = readRaster(out), m = readRaster(margin), a = readRaster(angle);
@@ -327,6 +331,8 @@ TEST(ViewshedCliTest, SummaryKeysRasterValuesAndMetadata) {
     EXPECT_EQ(metadataItem(out, "LOOKFAR_METHOD"), "fast");
     EXPECT_EQ(metadataItem(out, "LOOKFAR_EARTH_MODEL"), "ellipsoid");
     EXPECT_EQ(metadataItem(margin, "LOOKFAR_OBSERVER_CELL"), "117,66");
+    // The CRS of the observer's point: the DEM's, by its code (no --crs given).
+    EXPECT_EQ(metadataItem(out, "LOOKFAR_COORDINATE_CRS"), "EPSG:32630");
 }
 
 // The reference engine gives the same raster as the fast one (they are meant to be identical).

@@ -34,5 +34,8 @@ nlohmann::json summaryBase(const RunDescription& run);
 std::map<std::string, std::string> rasterMetadata(const RunDescription& run);
 /// JSON number, or null when not finite.
 nlohmann::json finiteOrNull(double value);
+/// A height for the summary, to the millimetre: a DEM cell's Float32 value (244.7 is stored as
+/// 244.69999694824219) and the heights added to it are written as typed (244.7, 259.7).
+double summaryMetres(double metres);
 
 }  // namespace lookfar

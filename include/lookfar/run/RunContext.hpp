@@ -125,6 +125,10 @@ void describeWindow(RunContext& ctx, const CellWindow& window);
 Observer inWindow(const RunContext& ctx, Observer o);
 /// Elevation of a cell of the whole DEM, which must lie in the window read.
 float groundAt(const RunContext& ctx, int col, int row);
+
+/// The CRS the run's points were given in, for metadata: --crs as typed, else the DEM's (its
+/// EPSG code, or its name when it has none).
+std::string coordinateCrs(const RunContext& ctx);
 /// Throws InputError naming `what` and the point as given when the cell of `o` (placed on the
 /// whole DEM, inside the window read) holds no data.
 void requireData(const RunContext& ctx, const std::string& what, const MapPoint& given,
