@@ -32,6 +32,7 @@ std::string percent(double fraction) {
 struct PlacedSite {
     Observer observer;
     double x = 0, y = 0;  ///< as given, in --crs
+    MapPoint dem_xy;      ///< the point in the DEM's CRS
     double ground_m = 0;
 };
 
@@ -88,8 +89,11 @@ std::vector<PlacedSite> placeViewshedObservers(RunContext& ctx, const ViewshedRu
         PlacedSite p;
         p.x = given.x;
         p.y = given.y;
-        p.observer =
-            placeObserver(ctx, "--observer", given.x, given.y, ctx.observer_height_m, st.name);
+        std::vector<MapPoint> dem_xy;
+        p.observer = placeObservers(ctx, {"--observer"}, {given}, {ctx.observer_height_m},
+                                    {st.name}, &dem_xy)
+                         .front();
+        p.dem_xy = dem_xy.front();
         placed.push_back(p);
         readDemWindow(ctx, workWindow(ctx, {p.observer}));
         requireData(ctx, "--observer", given, p.observer);
@@ -100,6 +104,7 @@ std::vector<PlacedSite> placeViewshedObservers(RunContext& ctx, const ViewshedRu
             p.x = rows.rows[i].x;
             p.y = rows.rows[i].y;
             p.observer = rows.observers[i];
+            p.dem_xy = rows.points_dem[i];
             placed.push_back(p);
         }
         readDemWindow(ctx, workWindow(ctx, rows.observers));
@@ -188,6 +193,36 @@ std::string singleTable(const RunContext& ctx, const PlacedSite& p, const Viewsh
 }
 
 /// One observer: the engine, its rasters, its summary entry; returns the table.
+/// --points: each observer or site as a point in the DEM's CRS with its figures.
+void writeObserverPoints(RunContext& ctx, const std::string& path,
+                         const std::vector<PlacedSite>& placed,
+                         const std::vector<ViewshedStats>& stats) {
+    using K = VectorField::Kind;
+    const VectorLayerSpec spec{path,
+                               "observers",
+                               ctx.dem.crs.wkt,
+                               {{"name", K::Text},
+                                {"height_m", K::Real},
+                                {"ground_m", K::Real},
+                                {"eye_m", K::Real},
+                                {"visible_cells", K::Integer},
+                                {"visible_area_m2", K::Real},
+                                {"visible_fraction", K::Real},
+                                {"farthest_visible_m", K::Real}},
+                               "lookfar viewshed: the observers and what each sees"};
+    std::vector<VectorFeature> features;
+    for (std::size_t i = 0; i < placed.size(); ++i) {
+        const PlacedSite& p = placed[i];
+        const ViewshedStats& s = stats[i];
+        features.push_back({{{p.dem_xy.x, p.dem_xy.y}},
+                            {p.observer.name, p.observer.height_m, summaryMetres(p.ground_m),
+                             summaryMetres(p.ground_m + p.observer.height_m),
+                             static_cast<long long>(s.visible_cells), s.visible_area_m2,
+                             s.visible_fraction, s.farthest_visible_m}});
+    }
+    ctx.outputs->adopt(writeVectorFeatures(spec, features), path);
+}
+
 std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const PlacedSite& p,
                       const ViewshedOptions& opt, ViewshedRasters& rasters, nlohmann::json& j) {
     const GridGeometry& g = ctx.dem.geometry;  // of the window read
@@ -204,6 +239,8 @@ std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const Place
         j["polygons"] = writePolygons(
             ctx, st.polygons, areaValues(grids.visible, [](std::uint8_t v) { return v == 1; }),
             "visible", "lookfar viewshed: areas seen from " + p.observer.name, p.observer.name);
+    if (!st.points.empty())
+        writeObserverPoints(ctx, st.points, {p}, {s});
     grids.visible = Grid<std::uint8_t>();
     if (opt.want_margin) {
         rasters.write(st.margin, PixelType::Float32, nan, kMarginText, "m", grids.margin.data());
@@ -284,6 +321,8 @@ std::string runSites(RunContext& ctx, const ViewshedRunOptions& st,
             "lookfar viewshed: areas seen by the same number of sites", names);
     }
     res.count = Grid<std::uint16_t>();
+    if (!st.points.empty())
+        writeObserverPoints(ctx, st.points, placed, res.sites);
     if (opt.want_margin) {
         rasters.write(st.margin, PixelType::Float32, std::numeric_limits<float>::quiet_NaN(),
                       std::string("largest over the sites of the ") + kMarginText, "m",
@@ -325,6 +364,10 @@ nlohmann::json outputsJson(const ViewshedRunOptions& st, bool single) {
         outputs["margin"] = st.margin;
     if (!st.angle.empty())
         outputs["angle"] = st.angle;
+    if (!st.polygons.empty())
+        outputs["polygons"] = st.polygons;
+    if (!st.points.empty())
+        outputs["points"] = st.points;
     return outputs;
 }
 
@@ -389,6 +432,12 @@ OptionTable ViewshedRun::declare() {
                            ".gpkg (GeoPackage, the DEM's CRS) or .geojson (WGS 84 lon/lat)",
                            "Output")
                     .fileType());
+    t.push_back(OptionDecl("--points", &st.points,
+                           "the observer (or every site) as points with height, ground, eye, "
+                           "visible cells, area, fraction and farthest visible distance: .gpkg "
+                           "or .geojson",
+                           "Output")
+                    .fileType());
     return t;
 }
 
@@ -399,7 +448,8 @@ RunReport ViewshedRun::run(const RunEnv& env) {
     std::vector<NamedPath> outputs = {{"-o", st.output, OutputKind::Raster},
                                       {"--margin", st.margin, OutputKind::Raster},
                                       {"--angle", st.angle, OutputKind::Raster},
-                                      {"--polygons", st.polygons, OutputKind::Vector}};
+                                      {"--polygons", st.polygons, OutputKind::Vector},
+                                      {"--points", st.points, OutputKind::Vector}};
     std::vector<std::string> extra_inputs;
     if (!single)
         extra_inputs.push_back(st.sites);

@@ -194,6 +194,44 @@ TEST(GisOutputsCliTest, PolygonsInAnUnknownFormatAreRefusedBeforeAnyWork) {
     EXPECT_TRUE(dir.entries().empty());
 }
 
+// Issue 15 item 2: viewshed --points writes every site (or the one observer) as a point where it
+// was placed, in the CSV's order, with the summary's figures for it.
+TEST(GisOutputsCliTest, ViewshedWritesItsSitesAsPointsWithTheirFigures) {
+    ScratchDir dir;
+    CliResult r =
+        runLookfar({"viewshed", kDemo, "--sites", kSites, "--reach", "3000", "-o",
+                    dir.file("c.tif"), "--points", dir.file("sites.gpkg"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    auto j = nlohmann::json::parse(r.out);
+    EXPECT_EQ(j["outputs"]["points"], dir.file("sites.gpkg"));
+    const auto points = readVectorFeatures(dir.file("sites.gpkg"));
+    ASSERT_EQ(points.size(), j["observers"].size());
+    ASSERT_EQ(points.size(), 7u);
+    for (std::size_t i = 0; i < points.size(); ++i) {
+        const auto& o = j["observers"][i];
+        SCOPED_TRACE(o["name"].get<std::string>());
+        EXPECT_EQ(points[i].fields.at("name"), o["name"].get<std::string>());
+        EXPECT_DOUBLE_EQ(points[i].x, o["x"].get<double>());  // no --crs: the DEM's CRS
+        EXPECT_DOUBLE_EQ(points[i].y, o["y"].get<double>());
+        EXPECT_EQ(std::stoll(points[i].fields.at("visible_cells")),
+                  o["visible_cells"].get<long long>());
+        EXPECT_NEAR(std::stod(points[i].fields.at("visible_area_m2")),
+                    o["visible_area_m2"].get<double>(), 1e-6 * o["visible_area_m2"].get<double>());
+        EXPECT_NEAR(std::stod(points[i].fields.at("eye_m")), o["eye_m"].get<double>(), 1e-9);
+    }
+    // One observer: one point, in lon/lat in GeoJSON (RFC 7946). UTM 30N (425087.5, 5597212.5)
+    // lies near 4.05° W, 50.52° N (PROJ gives the exact value; 0.1° is the check's tolerance).
+    r = runLookfar({"viewshed", kDemo, "--observer", "425087.5,5597212.5", "--name", "Kestle Cairn",
+                    "--reach", "2000", "-o", dir.file("v.tif"), "--points", dir.file("o.geojson"),
+                    "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto one = readVectorFeatures(dir.file("o.geojson"));
+    ASSERT_EQ(one.size(), 1u);
+    EXPECT_EQ(one[0].fields.at("name"), "Kestle Cairn");
+    EXPECT_NEAR(one[0].x, -4.05, 0.1);
+    EXPECT_NEAR(one[0].y, 50.52, 0.1);
+}
+
 // Issue 15 items 1, 2: select writes the chosen sites' coverage as polygons (adding up to the
 // summary's area seen by any chosen site) and the chosen sites as points in the order chosen.
 TEST(GisOutputsCliTest, SelectWritesItsCoverageAndItsChosenSites) {

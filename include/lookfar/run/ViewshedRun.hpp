@@ -14,6 +14,7 @@ struct ViewshedRunOptions {
     std::string margin;    ///< margin raster, empty = not written
     std::string angle;     ///< elevation-angle raster (one observer), empty = not written
     std::string polygons;  ///< visible areas as polygons (.gpkg or .geojson), empty = none
+    std::string points;    ///< the observers as points with their figures, empty = none
 };
 
 class ViewshedRun final : public RunCommand {
