@@ -39,6 +39,26 @@ struct PairGeometry {
     double scale_factor = 1;  ///< grid ÷ geodesic distance (1 on lat/lon DEMs)
 };
 
+/// --heights absolute: the CSV's heights are elevations of the instruments; each becomes a height
+/// above the ground of its cell (exit 3 naming the row when it lies below that ground).
+void heightsAboveGround(const RunContext& ctx, PlacedSites& placed) {
+    for (std::size_t i = 0; i < placed.rows.size(); ++i) {
+        if (!placed.rows[i].height_m)
+            continue;  // --observer-height above the ground, as documented
+        Observer& o = placed.observers[i];
+        const double ground = groundAt(ctx, o.col, o.row);
+        const double above = *placed.rows[i].height_m - ground;
+        if (above < 0) {
+            throw InputError(
+                placed.what[i] + ": its height " + printfNumber("%.3f", *placed.rows[i].height_m) +
+                " m lies below the ground of its cell (" + printfNumber("%.3f", ground) +
+                " m); with --heights absolute a height is the instrument's "
+                "elevation");
+        }
+        o.height_m = above;
+    }
+}
+
 /// Figures of pairs (PROJ geodesic; grid azimuths from the map coordinates, which on a lat/lon
 /// grid are the true ones), solved from the lower index to the higher so that both directions of
 /// a pair print the same distances.
@@ -328,6 +348,15 @@ OptionTable IntervisRun::declare() {
                            "Stations")
                     .fileType()
                     .mandatory());
+    t.push_back(OptionDecl("--heights", &s.heights,
+                           "how the CSV's height column is read: above-ground (metres above the "
+                           "ground of the station's cell) or absolute (the instrument's elevation "
+                           "in the DEM's vertical datum, as recorded in the field); a row without "
+                           "a height stands --observer-height above the ground either way",
+                           "Stations")
+                    .showDefault()
+                    .typeName("above-ground|absolute")
+                    .checkedBy(oneOfCheck({"above-ground", "absolute"})));
     t.push_back(OptionDecl("-o,--output", &s.matrix,
                            "matrix CSV, one row per ordered pair "
                            "(from,to,visible,margin_m,distance_m,azimuth_deg,back_azimuth_deg)",
@@ -362,13 +391,15 @@ RunReport IntervisRun::run(const RunEnv& env) {
     ctx.run.method = "reference";
     ctx.run.extra["STATIONS"] = s.stations;
     // Stations: names unique, inside the DEM and on data (exit 3 naming the file and line).
-    const PlacedSites placed =
-        placeSitesCsv(ctx, s.stations, "station", "the matrix needs unique names");
+    PlacedSites placed = placeSitesCsv(ctx, s.stations, "station", "the matrix needs unique names");
     const std::vector<Observer>& stations = placed.observers;
     if (stations.size() < 2)
         throw InputError(s.stations + ": intervisibility needs at least two stations");
     readDemWindow(ctx, workWindow(ctx, stations));  // the cells within reach of a station
     requireData(ctx, placed);
+    ctx.run.extra["HEIGHTS"] = s.heights;
+    if (s.heights == "absolute")
+        heightsAboveGround(ctx, placed);
     // Execute.
     IntervisOptions opt;
     opt.reach_m = ctx.reach_m;

@@ -205,6 +205,62 @@ TEST(IntervisCliTest, StationOutsideTheDemNamesTheFileAndLine) {
     EXPECT_FALSE(fileExists(dir.file("l.geojson")));
 }
 
+// Issue 15 item 6: surveyors record instrument heights as elevations. With --heights absolute a
+// CSV height is the instrument's elevation: stations given at their ground + 10 m and + 12 m give
+// the same matrix (to the rounding of the grounds to the millimetre in the summary) as heights of
+// 10 m and 12 m above the ground; an elevation below the ground is exit 3 naming the line.
+TEST(IntervisCliTest, AbsoluteHeightsAreElevationsOfTheInstruments) {
+    ScratchDir dir;
+    std::ofstream(dir.file("rel.csv"))
+        << "name,x,y,height\nA,422937.5,5598337.5,10\nB,425087.5,5597212.5,12\n"
+           "C,426937.5,5594387.5,\n";
+    CliResult r =
+        runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations", dir.file("rel.csv"),
+                    "-o", dir.file("rel_m.csv"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto j = nlohmann::json::parse(r.out);
+    const double ga = j["stations"][0]["ground_m"].get<double>();
+    const double gb = j["stations"][1]["ground_m"].get<double>();
+    std::ofstream(dir.file("abs.csv"))
+        << "name,x,y,height\nA,422937.5,5598337.5," << ga + 10 << "\nB,425087.5,5597212.5,"
+        << gb + 12 << "\nC,426937.5,5594387.5,\n";
+    r = runLookfar({"intervis", testRaster("demo_coast.tif"), "--stations", dir.file("abs.csv"),
+                    "-o", dir.file("abs_m.csv"), "--heights", "absolute", "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto k = nlohmann::json::parse(r.out);
+    EXPECT_NEAR(k["stations"][0]["height_m"].get<double>(), 10.0, 0.001);
+    EXPECT_NEAR(k["stations"][1]["height_m"].get<double>(), 12.0, 0.001);
+    EXPECT_NEAR(k["stations"][2]["height_m"].get<double>(), 1.7, 1e-12);  // no height: default
+    const auto rel = readCsv(dir.file("rel_m.csv")), abs = readCsv(dir.file("abs_m.csv"));
+    ASSERT_EQ(rel.size(), abs.size());
+    ASSERT_EQ(rel[0], abs[0]);
+    int margin = -1;
+    for (std::size_t c = 0; c < rel[0].size(); ++c)
+        if (rel[0][c] == "margin_m")
+            margin = static_cast<int>(c);
+    ASSERT_GE(margin, 0);
+    for (std::size_t i = 1; i < rel.size(); ++i) {
+        for (std::size_t c = 0; c < rel[i].size(); ++c) {
+            const bool eye_dependent = static_cast<int>(c) == margin || rel[0][c] == "zenith_deg" ||
+                                       rel[0][c] == "slope_distance_m";
+            if (eye_dependent && !rel[i][c].empty())
+                EXPECT_NEAR(std::stod(abs[i][c]), std::stod(rel[i][c]), 0.002) << rel[0][c];
+            else
+                EXPECT_EQ(abs[i][c], rel[i][c]) << rel[0][c] << " of row " << i;
+        }
+    }
+    // Below the ground: refused, naming the file and line, nothing written.
+    std::ofstream(dir.file("low.csv"))
+        << "name,x,y,height\nA,422937.5,5598337.5," << ga - 5 << "\nB,425087.5,5597212.5,500\n";
+    ScratchDir out;
+    expectRefused({"intervis", testRaster("demo_coast.tif"), "--stations", dir.file("low.csv"),
+                   "-o", out.file("m.csv"), "--heights", "absolute", "--quiet"},
+                  3, {"low.csv, line 2", "below the ground", "--heights absolute"}, out);
+    expectRefused({"intervis", testRaster("demo_coast.tif"), "--stations", dir.file("rel.csv"),
+                   "-o", out.file("m.csv"), "--heights", "sea-level", "--quiet"},
+                  2, {"--heights"}, out);
+}
+
 TEST(IntervisCliTest, DuplicateStationNamesAreBadInput) {
     ScratchDir dir;
     std::ofstream(dir.file("st.csv"))

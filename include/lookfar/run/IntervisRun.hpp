@@ -13,6 +13,9 @@ struct IntervisRunOptions {
     std::string lines;     ///< GeoJSON of the pairs that see each other, empty = not written
     std::string points;    ///< the stations as points (.gpkg or .geojson), empty = not written
     bool all_pairs = false;
+    /// How the CSV's height column is read: "above-ground" (metres above the ground of the
+    /// station's cell) or "absolute" (the instrument's elevation in the DEM's vertical datum).
+    std::string heights = "above-ground";
 };
 
 class IntervisRun final : public RunCommand {
