@@ -39,7 +39,10 @@ std::string cautionText() {
            "propagation\n"
            "model; masts, towers and beacons need the permits of the local aviation, planning and\n"
            "radio authorities; survey work follows local codes and licensed practice. Not for\n"
-           "navigation or safety-of-life decisions.";
+           "navigation or safety-of-life decisions. Radio loss and level layers (signal) are "
+           "median\n"
+           "predictions for planning, not licensed coverage: where a regulator prescribes its own\n"
+           "method, that method and licensed radio engineering prevail.";
 }
 
 }  // namespace lookfar::cli

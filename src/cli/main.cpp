@@ -122,9 +122,10 @@ int main(int argc, char** argv) {
     }
     cli::commandLine() = line;
 
-    CLI::App app{"lookfar " + std::string(kVersion) +
-                     " — visibility and horizon layers from DEMs over a curved, refracting Earth.",
-                 "lookfar"};
+    CLI::App app{
+        "lookfar " + std::string(kVersion) +
+            " — visibility, horizon and radio layers from DEMs over a curved, refracting Earth.",
+        "lookfar"};
     app.set_version_flag("--version", std::string("lookfar ") + kVersion);
     app.require_subcommand(1);
     app.footer(cli::conventionsText() + cli::cautionText());

@@ -183,6 +183,12 @@ TEST(InputValidationCliTest, HelpCommandPrintsTheHelpOfLookfarOrOfACommand) {
     EXPECT_EQ(root.exit_code, 0) << root.err;
     EXPECT_EQ(root.out, runLookfar({"--help"}).out);
     EXPECT_NE(root.out.find("viewshed"), std::string::npos);
+    // The cautions of docs/design.md, the radio one included, in lookfar's own --help.
+    EXPECT_NE(root.out.find("Not for\nnavigation or safety-of-life decisions"), std::string::npos)
+        << root.out;
+    EXPECT_NE(root.out.find("Radio loss and level layers (signal) are median"), std::string::npos)
+        << root.out;
+    EXPECT_NE(root.out.find("licensed radio engineering prevail"), std::string::npos);
     const CliResult link = runLookfar({"help", "link"});
     EXPECT_EQ(link.exit_code, 0) << link.err;
     EXPECT_EQ(link.out, runLookfar({"link", "--help"}).out);
