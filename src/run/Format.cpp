@@ -4,6 +4,7 @@
 #include <cstdio>
 
 #include "lookfar/core/Text.hpp"
+#include "lookfar/report/TextTable.hpp"
 
 namespace lookfar::run {
 
@@ -15,6 +16,10 @@ std::string printfNumber(const char* format, double v) {
 
 std::string printfFinite(const char* format, double v) {
     return std::isfinite(v) ? printfNumber(format, v) : std::string();
+}
+
+std::string reachText(double reach_m) {
+    return std::isfinite(reach_m) ? formatDistance(reach_m) : "unlimited";
 }
 
 std::string fmtg(double v) {

@@ -31,9 +31,6 @@ constexpr float kHorizonNoData = -9999.0f;  // docs/design.md: horizon rasters u
 std::string deg(double v, int decimals = 3) {
     return std::isfinite(v) ? formatNumber(v, decimals) + "°" : "-";
 }
-std::string reachText(double reach_m) {
-    return std::isfinite(reach_m) ? formatDistance(reach_m) : "unlimited";
-}
 std::string azimuthText(double az) {
     return printfNumber("%.3f", az) + "° clockwise from grid north";
 }
@@ -259,7 +256,7 @@ void describeGrid(RunContext& ctx, const HorizonRunOptions& st, const HorizonOpt
     ctx.run.extra["AZIMUTHS"] = "band i (1-based) is azimuth (i - 1) * 360 / " + std::to_string(n) +
                                 " degrees clockwise from grid north, measured on the ground";
     ctx.run.extra["NODATA"] = "-9999: no terrain sample with data in that direction within reach";
-    ctx.run.extra["COORDINATE_CRS"] = st.common.crs.empty() ? "the DEM's" : st.common.crs;
+    ctx.run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
     describeEngine(ctx, opt);
 }
 
@@ -655,9 +652,14 @@ RunReport runPoint(const RunEnv& env, const HorizonRunOptions& st) {
     nlohmann::json j = summaryBase(ctx.run);
     nlohmann::json sectors;
     const std::string sector_text = openSectors(s.p, sectors);
-    j["spot"] = {{"x", s.given.x},           {"y", s.given.y},       {"col", s.cell.col},
-                 {"row", s.cell.row},        {"cell_x", s.centre.x}, {"cell_y", s.centre.y},
-                 {"ground_m", s.p.ground_m}, {"eye_m", s.p.eye_m}};
+    j["spot"] = {{"x", s.given.x},
+                 {"y", s.given.y},
+                 {"col", s.cell.col},
+                 {"row", s.cell.row},
+                 {"cell_x", s.centre.x},
+                 {"cell_y", s.centre.y},
+                 {"ground_m", summaryMetres(s.p.ground_m)},
+                 {"eye_m", summaryMetres(s.p.eye_m)}};
     j["horizon"] = spotJson(st, s, sectors);
     const std::string no_terrain = noTerrainText(ctx, s.p);
     if (!no_terrain.empty())

@@ -76,10 +76,6 @@ std::string bandTable(const ViewshedStats& s) {
     return t.render();
 }
 
-std::string reachText(double reach_m) {
-    return std::isfinite(reach_m) ? formatDistance(reach_m) : "unlimited";
-}
-
 /// The observers placed on the DEM (exit 3 when outside); then the cells within their reach
 /// are read (exit 3 when an observer stands on no-data).
 std::vector<PlacedSite> placeViewshedObservers(RunContext& ctx, const ViewshedRunOptions& st,

@@ -12,6 +12,8 @@ std::string printfNumber(const char* format, double v);
 std::string printfFinite(const char* format, double v);
 /// `v` with 10 significant digits (%.10g), for coordinates in CSVs and tables.
 std::string fmtg(double v);
+/// A reach for tables: a distance ("5 km"), or "unlimited" when not finite.
+std::string reachText(double reach_m);
 /// An azimuth in [0, 360).
 double wrap360(double az);
 
