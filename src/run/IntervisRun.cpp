@@ -315,9 +315,11 @@ std::string summaryTable(const RunContext& ctx, const std::vector<Observer>& sta
             std::to_string(t.both) + (t.one_way ? " (and " + std::to_string(t.one_way) +
                                                       " seen one way only, margin near zero)"
                                                 : ""));
+    // A name holding a comma or a quote is quoted as in a CSV, so that the list reads one way:
+    // "CP 7, roof", TRIG 102.
     std::string none;
     for (const auto& name : t.seen_by_none)
-        none += (none.empty() ? "" : ", ") + name;
+        none += (none.empty() ? "" : ", ") + csvField(name);
     sum.add("seen by no other station", none.empty() ? "none" : none);
     return table.render() + sum.render();
 }

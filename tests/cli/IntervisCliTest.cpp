@@ -261,6 +261,22 @@ TEST(IntervisCliTest, AbsoluteHeightsAreElevationsOfTheInstruments) {
                   2, {"--heights"}, out);
 }
 
+// Issue 12 item 17: the stations seen by no other are listed so that a name holding a comma
+// reads as one name. Three stations 4 km apart on the flat sea with a 1 km reach: none is seen.
+TEST(IntervisCliTest, UnseenStationsWithCommasInTheirNamesReadOneWay) {
+    ScratchDir dir;
+    std::ofstream(dir.file("st.csv"))
+        << "name,x,y\n\"CP 7, roof\",421025,5624975\nTRIG 102,425025,5624975\n"
+           "\"Mast \"\"B\"\"\",429025,5624975\n";
+    const CliResult r =
+        runLookfar({"intervis", testRaster("flat_sea.tif"), "--stations", dir.file("st.csv"), "-o",
+                    dir.file("m.csv"), "--reach", "1km", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.out.find("seen by no other station  \"CP 7, roof\", TRIG 102, \"Mast \"\"B\"\"\""),
+              std::string::npos)
+        << r.out;
+}
+
 TEST(IntervisCliTest, DuplicateStationNamesAreBadInput) {
     ScratchDir dir;
     std::ofstream(dir.file("st.csv"))
