@@ -212,8 +212,8 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
            const py::object& earth_model, const py::object& earth_radius, const py::object& crs,
            const py::object& method, const py::object& threads, const py::object& margin,
            const py::object& angle, const py::object& output, const py::object& sites,
-           const py::object& name, const py::object& polygons, bool overwrite,
-           const py::object& progress) {
+           const py::object& name, const py::object& polygons, const py::object& points,
+           bool overwrite, const py::object& progress) {
             run::ViewshedRun command;
             Call call(command, dem);
             const CommonArgs common{observer_height, target_height, reach,  refraction, earth_model,
@@ -230,6 +230,7 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
             call.add(Output("margin", "--margin", "margin.tif", Kind::Raster, margin));
             call.add(Output("angle", "--angle", "angle.tif", Kind::Raster, angle));
             call.add(Output("polygons", "--polygons", "polygons.gpkg", Kind::File, polygons));
+            call.add(Output("points", "--points", "points.gpkg", Kind::File, points));
             py::object r = call.run(overwrite, progress);
             r.attr(many ? "visible" : "count") = py::none();
             return r;
@@ -241,7 +242,8 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
         py::arg("method") = "fast", py::arg("threads") = py::none(), py::arg("margin") = false,
         py::arg("angle") = false, py::arg("output") = py::none(), py::arg("sites") = py::none(),
         py::arg("name") = "observer", py::arg("polygons") = py::none(),
-        py::arg("overwrite") = false, py::arg("progress") = py::none(),
+        py::arg("points") = py::none(), py::arg("overwrite") = false,
+        py::arg("progress") = py::none(),
         (std::string(R"(Which cells a target can be seen from (lookfar viewshed).
 
     dem: a path or a lookfar.Dem.
@@ -256,6 +258,8 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
     output: a path to write the visibility (or count) GeoTIFF too, as the CLI's -o; None keeps
         it in memory only.
     polygons: a .gpkg or .geojson path for the visible areas as polygons.
+    points: a .gpkg or .geojson path for the observer (or every site) as points with their
+        figures.
     method: "fast" (default) or "reference" (judges every cell on its own; same result,
         slower).)") +
          kHeightDoc + kGeometryDoc + R"(

@@ -100,3 +100,11 @@ def test_viewshed_polygons_are_written_as_by_the_cli(lookfar, tmp_path):
     r = lookfar.viewshed(DEMO, observer=QUARREL, reach=3000, polygons=tmp_path / "py.geojson")
     assert comparable(r.summary)["polygons"]["features"] == cli["polygons"]["features"]
     assert (tmp_path / "py.geojson").read_bytes() == (tmp_path / "cli.geojson").read_bytes()
+
+
+def test_viewshed_points_are_written_as_by_the_cli(lookfar, tmp_path):
+    cli_json("viewshed", DEMO, "--sites", raster("demo_sites.csv"), "--reach", 3000,
+             "-o", tmp_path / "c.tif", "--points", tmp_path / "cli.geojson")
+    lookfar.viewshed(DEMO, sites=raster("demo_sites.csv"), reach=3000,
+                     points=tmp_path / "py.geojson")
+    assert (tmp_path / "py.geojson").read_bytes() == (tmp_path / "cli.geojson").read_bytes()
