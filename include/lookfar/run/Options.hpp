@@ -108,7 +108,7 @@ struct CommonOptions {
     std::string extent;  ///< --extent: "dem" or "reach"; empty for commands without rasters
     std::string format = "GTiff";  ///< --format: GTiff, or COG (cloud-optimised, with overviews)
     bool overviews = false;        ///< --overviews: internal overviews in a GTiff
-    std::string memory;  ///< --memory: empty = half of the physical memory
+    std::string memory;            ///< --memory: empty = half of the physical memory
 };
 
 /// The DEM argument and the common options of `which` over `o`, in the order --help lists them.
