@@ -20,11 +20,13 @@
 // earth
 #include "lookfar/earth/EarthModel.hpp"
 
+// sightline
+#include "lookfar/sightline/Observer.hpp"
+#include "lookfar/sightline/SightlineRule.hpp"
+#include "lookfar/sightline/SightlineSamples.hpp"
+
 // viewshed
 #include "lookfar/viewshed/MultiViewshed.hpp"
-#include "lookfar/viewshed/Observer.hpp"
-#include "lookfar/viewshed/SightlineRule.hpp"
-#include "lookfar/viewshed/SightlineSamples.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 #include "lookfar/viewshed/ViewshedSummary.hpp"
 

@@ -8,7 +8,7 @@
 
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/ParallelFor.hpp"
-#include "lookfar/viewshed/SightlineRule.hpp"
+#include "lookfar/sightline/SightlineRule.hpp"
 
 namespace lookfar {
 

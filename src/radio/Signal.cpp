@@ -13,8 +13,8 @@
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/radio/Signal.hpp"
-#include "lookfar/viewshed/SightlineRule.hpp"
-#include "lookfar/viewshed/SightlineSamples.hpp"
+#include "lookfar/sightline/SightlineRule.hpp"
+#include "lookfar/sightline/SightlineSamples.hpp"
 #include "RadioText.hpp"
 
 namespace lookfar {

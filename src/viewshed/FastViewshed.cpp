@@ -51,7 +51,7 @@
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Units.hpp"
-#include "lookfar/viewshed/SightlineSamples.hpp"
+#include "lookfar/sightline/SightlineSamples.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 
 namespace lookfar {

@@ -6,7 +6,7 @@
 #include <limits>
 
 #include "lookfar/core/ParallelFor.hpp"
-#include "lookfar/viewshed/SightlineRule.hpp"
+#include "lookfar/sightline/SightlineRule.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 
 namespace lookfar {

@@ -11,7 +11,7 @@
 #include "lookfar/core/FractalTerrain.hpp"
 #include "lookfar/core/GridGeometry.hpp"
 #include "lookfar/link/Intervisibility.hpp"
-#include "lookfar/viewshed/SightlineRule.hpp"
+#include "lookfar/sightline/SightlineRule.hpp"
 
 using namespace lookfar;
 

@@ -9,7 +9,7 @@
 #include <limits>
 #include <vector>
 
-#include "lookfar/viewshed/SightlineSamples.hpp"
+#include "lookfar/sightline/SightlineSamples.hpp"
 
 using namespace lookfar;
 

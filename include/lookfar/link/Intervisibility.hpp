@@ -22,7 +22,7 @@
 #include "lookfar/core/GridGeometry.hpp"
 #include "lookfar/core/Progress.hpp"
 #include "lookfar/earth/EarthModel.hpp"
-#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/sightline/Observer.hpp"
 
 namespace lookfar {
 

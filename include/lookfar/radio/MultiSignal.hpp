@@ -19,7 +19,7 @@
 #include "lookfar/earth/EarthModel.hpp"
 #include "lookfar/radio/AntennaPattern.hpp"
 #include "lookfar/radio/Signal.hpp"
-#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/sightline/Observer.hpp"
 
 namespace lookfar {
 

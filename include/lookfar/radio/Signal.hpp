@@ -20,7 +20,7 @@
 #include "lookfar/core/Progress.hpp"
 #include "lookfar/earth/EarthModel.hpp"
 #include "lookfar/radio/Propagation.hpp"
-#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/sightline/Observer.hpp"
 
 namespace lookfar {
 

@@ -25,7 +25,7 @@
 #include "lookfar/report/Summary.hpp"
 #include "lookfar/run/Format.hpp"
 #include "lookfar/run/Options.hpp"
-#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/sightline/Observer.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 
 namespace lookfar::run {

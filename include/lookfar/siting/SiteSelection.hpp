@@ -21,7 +21,7 @@
 #include "lookfar/core/Progress.hpp"
 #include "lookfar/earth/EarthModel.hpp"
 #include "lookfar/siting/GreedyCoverage.hpp"
-#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/sightline/Observer.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 
 namespace lookfar {

@@ -18,7 +18,7 @@
 
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
-#include "lookfar/viewshed/Observer.hpp"
+#include "lookfar/sightline/Observer.hpp"
 #include "lookfar/viewshed/Viewshed.hpp"
 
 namespace lookfar {

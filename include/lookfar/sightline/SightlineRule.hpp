@@ -22,8 +22,8 @@
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
 #include "lookfar/earth/EarthModel.hpp"
-#include "lookfar/viewshed/Observer.hpp"
-#include "lookfar/viewshed/SightlineSamples.hpp"
+#include "lookfar/sightline/Observer.hpp"
+#include "lookfar/sightline/SightlineSamples.hpp"
 
 namespace lookfar {
 

@@ -1,4 +1,4 @@
-#include "lookfar/viewshed/SightlineRule.hpp"
+#include "lookfar/sightline/SightlineRule.hpp"
 
 #include <cmath>
 #include <cstdlib>
@@ -6,7 +6,7 @@
 
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/Units.hpp"
-#include "lookfar/viewshed/SightlineSamples.hpp"
+#include "lookfar/sightline/SightlineSamples.hpp"
 
 namespace lookfar {
 
