@@ -28,8 +28,9 @@ std::string conventionsText() {
            "Earth\n"
            "  look larger: effective radius R/(1-k). A point at distance d appears lowered by\n"
            "  d^2(1-k)/2R.\n"
-           "  The observer stands at the centre of the cell containing the given point; a target\n"
-           "  is visible when no terrain between them rises above the straight sightline.\n";
+           "  Observers, stations, candidates and transmitters stand at the centre of the cell\n"
+           "  containing the given point (link: at the points themselves); a target is visible\n"
+           "  when no terrain between them rises above the straight sightline.\n";
 }
 
 std::string cautionText() {

@@ -167,10 +167,12 @@ OptionTable commonOptions(CommonOptions& o, unsigned which) {
     t.push_back(OptionDecl("DEM", &o.dem, "digital elevation model (any raster GDAL reads)")
                     .fileType()
                     .mandatory());
-    t.push_back(OptionDecl("--crs", &o.crs,
-                           "CRS of coordinates on the command line and in CSVs (default: the "
-                           "DEM's), x/easting/longitude first, e.g. EPSG:4326",
-                           "Coordinates"));
+    if (which & kGeometryOptions) {  // the commands that take coordinates (not info)
+        t.push_back(OptionDecl("--crs", &o.crs,
+                               "CRS of coordinates on the command line and in CSVs (default: the "
+                               "DEM's), x/easting/longitude first, e.g. EPSG:4326",
+                               "Coordinates"));
+    }
     addGeometryOptions(t, o, which);
     t.push_back(OptionDecl("--z-unit", &o.z_unit,
                            "unit of the DEM's elevations when the band does not say (m, ft, us-ft)",
@@ -187,8 +189,10 @@ OptionTable commonOptions(CommonOptions& o, unsigned which) {
                         .checkedBy(oneOfCheck({"fast", "reference"})));
     }
     t.push_back(OptionDecl("--threads", &o.threads,
-                           "worker threads, for the engines and for compressing GeoTIFFs, 1 to "
-                           "1024 (default or 0: all cores)",
+                           (which & kOutputOptions)
+                               ? "worker threads, for the engines and for compressing GeoTIFFs, "
+                                 "1 to 1024 (default or 0: all cores)"
+                               : "worker threads, 1 to 1024 (default or 0: all cores)",
                            "Engine")
                     .checkedBy(wholeNumberCheck(0, kMaxThreads, "(0: every core)")));
     t.push_back(OptionDecl("--memory", &o.memory,

@@ -188,7 +188,9 @@ TEST(InfoCliTest, DescribesASouthUpDemThatTheEnginesRefuse) {
 }
 
 TEST(BadInputCliTest, UnknownCrsStringIsAUsageError) {
-    CliResult r = runLookfar({"info", testRaster("wall.tif"), "--crs", "EPSG:99999999"});
+    ScratchDir dir;
+    CliResult r = runLookfar({"viewshed", testRaster("wall.tif"), "--crs", "EPSG:99999999",
+                              "--observer", "0,0", "-o", dir.file("v.tif")});
     EXPECT_EQ(r.exit_code, 2);
     EXPECT_NE(firstLine(r.err).find("EPSG:99999999"), std::string::npos) << r.err;
 }
