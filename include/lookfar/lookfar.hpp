@@ -11,6 +11,7 @@
 #include "lookfar/core/FractalTerrain.hpp"
 #include "lookfar/core/Grid.hpp"
 #include "lookfar/core/GridGeometry.hpp"
+#include "lookfar/core/MapPoint.hpp"
 #include "lookfar/core/MemorySize.hpp"
 #include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Progress.hpp"
@@ -37,7 +38,9 @@
 #include "lookfar/horizon/HorizonTiling.hpp"
 
 // link
+#include "lookfar/link/Geodesy.hpp"
 #include "lookfar/link/Intervisibility.hpp"
+#include "lookfar/link/PairGeometry.hpp"
 #include "lookfar/link/PathProfile.hpp"
 
 // radio

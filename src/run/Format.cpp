@@ -20,13 +20,6 @@ std::string fmtg(double v) {
     return printfNumber("%.10g", v);
 }
 
-double wrap360(double az) {
-    az = std::fmod(az, 360.0);
-    if (az < 0)
-        az += 360.0;
-    return az >= 360.0 ? 0.0 : az;
-}
-
 nlohmann::json jsonSafe(const nlohmann::json& j) {
     if (j.is_string())
         return escapeInvalidUtf8(j.get<std::string>());

@@ -12,6 +12,7 @@
 #include "lookfar/io/SitesCsv.hpp"
 #include "lookfar/io/VectorOutput.hpp"
 #include "lookfar/link/Intervisibility.hpp"
+#include "lookfar/link/PairGeometry.hpp"
 #include "lookfar/report/GeoJson.hpp"
 #include "lookfar/report/TextTable.hpp"
 
@@ -22,19 +23,6 @@ namespace {
 double round4(double v) {
     return std::round(v * 1e4) / 1e4;
 }
-
-/// Distance, azimuths and survey figures of a pair, from the points as given (converted to the
-/// DEM's CRS) and the stations' eyes.
-struct PairGeometry {
-    double distance_m = 0;        ///< PROJ geodesic on the DEM's ellipsoid
-    double azimuth_deg = 0;       ///< grid azimuth at the first station towards the second
-    double back_azimuth_deg = 0;  ///< grid azimuth at the second station towards the first
-    double azimuth_true_deg = 0;  ///< geodesic azimuth at the first station (from true north)
-    double zenith_deg = 0;    ///< zenith angle first eye → second eye, curvature and refraction
-    double slope_m = 0;       ///< straight line between the eyes (true radius)
-    double grid_m = 0;        ///< distance in the map's plane (the geodesic on lat/lon DEMs)
-    double scale_factor = 1;  ///< grid ÷ geodesic distance (1 on lat/lon DEMs)
-};
 
 /// --heights absolute: the CSV's heights are elevations of the instruments; each becomes a height
 /// above the ground of its cell (exit 3 naming the row when it lies below that ground).
@@ -56,72 +44,19 @@ void heightsAboveGround(const RunContext& ctx, PlacedSites& placed) {
     }
 }
 
-/// Figures of pairs (PROJ geodesic; grid azimuths from the map coordinates, which on a lat/lon
-/// grid are the true ones), solved from the lower index to the higher so that both directions of
-/// a pair print the same distances.
-class PairGeometer {
-  public:
-    PairGeometer(const RunContext& ctx, const std::vector<MapPoint>& points,
-                 const std::vector<Observer>& stations)
-        : points_(points),
-          stations_(stations),
-          earth_(ctx.earth),
-          geo_(ctx.dem.crs.ellipsoid),
-          geographic_(ctx.grid.geographic()),
-          unit_m_(ctx.grid.linearUnitMetres()) {
-        const LonLatOf ll(ctx.dem.crs.wkt);
-        for (std::size_t i = 0; i < points.size(); ++i) {
-            lonlat_.push_back(ll.apply(points[i]));
-            eye_.push_back(groundAt(ctx, stations[i].col, stations[i].row) + stations[i].height_m);
-        }
+/// The stations as the pair geometry needs them: map and lon/lat positions, eye elevations.
+std::vector<PairGeometer::Station> pairStations(const RunContext& ctx,
+                                                const std::vector<MapPoint>& points,
+                                                const std::vector<Observer>& stations) {
+    const LonLatOf ll(ctx.dem.crs.wkt);
+    std::vector<PairGeometer::Station> out;
+    for (std::size_t i = 0; i < points.size(); ++i) {
+        out.push_back({points[i], ll.apply(points[i]),
+                       groundAt(ctx, stations[i].col, stations[i].row) + stations[i].height_m,
+                       stations[i].latitude_deg});
     }
-
-    PairGeometry operator()(int from, int to) const {
-        const int i = std::min(from, to), j = std::max(from, to);
-        const GeodesicLine line =
-            geo_.inverse(lonlat_[i].x, lonlat_[i].y, lonlat_[j].x, lonlat_[j].y);
-        PairGeometry ij;
-        ij.distance_m = line.distance_m;
-        if (geographic_) {
-            ij.azimuth_deg = line.azimuth1_deg;
-            ij.back_azimuth_deg = wrap360(line.azimuth2_deg + 180.0);
-            ij.grid_m = line.distance_m;
-        } else {
-            ij.azimuth_deg = wrap360(
-                std::atan2(points_[j].x - points_[i].x, points_[j].y - points_[i].y) * kRadToDeg);
-            ij.back_azimuth_deg = wrap360(ij.azimuth_deg + 180.0);
-            ij.grid_m =
-                std::hypot(points_[j].x - points_[i].x, points_[j].y - points_[i].y) * unit_m_;
-            ij.scale_factor = line.distance_m > 0 ? ij.grid_m / line.distance_m : 1.0;
-        }
-        const double true_ij = line.azimuth1_deg, true_ji = wrap360(line.azimuth2_deg + 180.0);
-        ij.slope_m =
-            EarthModel::sphereChordM(eye_[i], eye_[j], line.distance_m,
-                                     earth_.radiusAlong(stations_[i].latitude_deg, true_ij));
-        if (line.distance_m == 0)
-            ij.azimuth_deg = ij.back_azimuth_deg = std::numeric_limits<double>::quiet_NaN();
-        // The direction asked for: from `from`'s eye towards `to`'s.
-        const double true_az = from == i ? true_ij : true_ji;
-        const double r_eff = earth_.effectiveRadius(stations_[from].latitude_deg, true_az);
-        ij.azimuth_true_deg =
-            line.distance_m == 0 ? std::numeric_limits<double>::quiet_NaN() : true_az;
-        ij.zenith_deg = 90.0 - EarthModel::sphereElevationAngleDeg(eye_[from], eye_[to],
-                                                                   line.distance_m, r_eff);
-        if (from != i)
-            std::swap(ij.azimuth_deg, ij.back_azimuth_deg);
-        return ij;
-    }
-
-  private:
-    const std::vector<MapPoint>& points_;
-    const std::vector<Observer>& stations_;
-    const EarthModel& earth_;
-    std::vector<MapPoint> lonlat_;
-    std::vector<double> eye_;
-    Geodesic geo_;
-    bool geographic_;
-    double unit_m_;
-};
+    return out;
+}
 
 /// The matrix, streamed row by row into its temporary file: one row per ordered pair within
 /// reach (with --all-pairs, every ordered pair).
@@ -406,7 +341,9 @@ RunReport IntervisRun::run(const RunEnv& env) {
     const IntervisResult res = computeIntervisibility(ctx.dem.z, ctx.dem.geometry, ctx.earth,
                                                       stations_in_window, opt, *ctx.progress);
     // Write (to temporaries, renamed by finishRun).
-    const PairGeometer pairGeometry(ctx, placed.points_dem, stations);
+    const Geodesic geodesic(ctx.dem.crs.ellipsoid);
+    const PairGeometer pairGeometry(pairStations(ctx, placed.points_dem, stations), ctx.earth,
+                                    geodesic, ctx.grid.geographic(), ctx.grid.linearUnitMetres());
     writeMatrix(ctx, s, stations, res, pairGeometry);
     const PairTally tally = tallyPairs(res, stations);
     if (!s.lines.empty()) {

@@ -5,13 +5,10 @@
 #include <string>
 
 #include "lookfar/core/Ellipsoid.hpp"
+#include "lookfar/core/MapPoint.hpp"
+#include "lookfar/link/Geodesy.hpp"
 
 namespace lookfar {
-
-struct MapPoint {
-    double x = 0;
-    double y = 0;
-};
 
 /// Parses "X,Y" (two finite decimal numbers, spaces allowed around each); throws UsageError
 /// naming `what` and the text (cut and escaped).
@@ -64,17 +61,12 @@ bool crsIsGeographic(const std::string& crs);
 void validateCrs(const std::string& crs, const std::string& what);
 
 /// Geodesic on an ellipsoid (PROJ's geod_inverse/geod_direct, Karney 2013).
-struct GeodesicLine {
-    double distance_m = 0;
-    double azimuth1_deg = 0;  ///< at the first point, clockwise from true north, [0, 360)
-    double azimuth2_deg = 0;  ///< forward azimuth at the second point, [0, 360)
-};
-class Geodesic {
+class Geodesic final : public GeodesicSolver {
   public:
     explicit Geodesic(const Ellipsoid& e);
-    GeodesicLine inverse(double lon1, double lat1, double lon2, double lat2) const;
+    GeodesicLine inverse(double lon1, double lat1, double lon2, double lat2) const override;
     /// Point at distance s from (lon1, lat1) along azimuth az1 (degrees).
-    MapPoint direct(double lon1, double lat1, double az1_deg, double s_m) const;
+    MapPoint direct(double lon1, double lat1, double az1_deg, double s_m) const override;
 
   private:
     Ellipsoid e_;

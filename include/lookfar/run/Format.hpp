@@ -4,6 +4,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "lookfar/link/Geodesy.hpp"      // wrap360
 #include "lookfar/report/TextTable.hpp"  // printfNumber, formatNumber
 
 namespace lookfar::run {
@@ -14,8 +15,6 @@ std::string printfFinite(const char* format, double v);
 std::string fmtg(double v);
 /// A reach for tables: a distance ("5 km"), or "unlimited" when not finite.
 std::string reachText(double reach_m);
-/// An azimuth in [0, 360).
-double wrap360(double az);
 
 /// `j` with every string and key made valid UTF-8 (a byte that breaks UTF-8 becomes \xNN), so
 /// that a path given as bytes can be echoed in JSON.
