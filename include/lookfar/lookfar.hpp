@@ -55,6 +55,7 @@
 // io
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/Dem.hpp"
+#include "lookfar/io/FileNames.hpp"
 #include "lookfar/io/MemoryBudget.hpp"
 #include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/RasterWriter.hpp"
