@@ -348,6 +348,7 @@ rasters hold -9999: no terrain with data in that direction within reach.)")
             r.attr("azimuth") = columns["azimuth_deg"];
             r.attr("angle") = columns["angle_deg"];
             r.attr("distance") = columns["distance_m"];
+            r.attr("edge_distance") = columns["edge_distance_m"];
             return r;
         },
         py::arg("dem"), py::arg("at"), py::arg("step") = 1.0, py::arg("observer_height") = 1.7,
@@ -366,8 +367,10 @@ rasters hold -9999: no terrain with data in that direction within reach.)")
 
 Returns a Result: .azimuth (degrees clockwise from grid north), .angle (degrees above the eye's
 horizontal) and .distance (ground distance to the horizon point, metres) as numpy arrays, one
-value per direction, NaN where no terrain lies within the DEM and reach; .horizon (every column
-of the CSV: azimuth_deg, angle_deg, distance_m, x, y, elevation_m; x, y in crs); .summary (with
+value per direction, NaN where no terrain lies within the DEM and reach; .edge_distance (ground
+distance to where the DEM ends in that direction, metres, NaN where that is beyond the reach);
+.horizon (every column of the CSV: azimuth_deg, angle_deg, distance_m, x, y, elevation_m,
+edge_distance_m; x, y in crs); .summary (with
 the lowest and highest horizon, the open sectors, the sky-view factor and the sea-horizon dip),
 .table.)")
             .c_str());

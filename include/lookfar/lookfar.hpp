@@ -30,6 +30,7 @@
 
 // horizon
 #include "lookfar/horizon/AsyncSink.hpp"
+#include "lookfar/horizon/HorizonEdge.hpp"
 #include "lookfar/horizon/HorizonProfile.hpp"
 #include "lookfar/horizon/HorizonScan.hpp"
 #include "lookfar/horizon/HorizonTiling.hpp"
