@@ -213,7 +213,7 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
            const py::object& method, const py::object& threads, const py::object& margin,
            const py::object& angle, const py::object& output, const py::object& sites,
            const py::object& name, const py::object& polygons, const py::object& points,
-           bool overwrite, const py::object& progress) {
+           const py::object& per_site, bool overwrite, const py::object& progress) {
             run::ViewshedRun command;
             Call call(command, dem);
             const CommonArgs common{observer_height, target_height, reach,  refraction, earth_model,
@@ -231,6 +231,7 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
             call.add(Output("angle", "--angle", "angle.tif", Kind::Raster, angle));
             call.add(Output("polygons", "--polygons", "polygons.gpkg", Kind::File, polygons));
             call.add(Output("points", "--points", "points.gpkg", Kind::File, points));
+            call.add(Output("per_site", "--per-site", "per_site", Kind::File, per_site));
             py::object r = call.run(overwrite, progress);
             r.attr(many ? "visible" : "count") = py::none();
             return r;
@@ -242,8 +243,8 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
         py::arg("method") = "fast", py::arg("threads") = py::none(), py::arg("margin") = false,
         py::arg("angle") = false, py::arg("output") = py::none(), py::arg("sites") = py::none(),
         py::arg("name") = "observer", py::arg("polygons") = py::none(),
-        py::arg("points") = py::none(), py::arg("overwrite") = false,
-        py::arg("progress") = py::none(),
+        py::arg("points") = py::none(), py::arg("per_site") = py::none(),
+        py::arg("overwrite") = false, py::arg("progress") = py::none(),
         (std::string(R"(Which cells a target can be seen from (lookfar viewshed).
 
     dem: a path or a lookfar.Dem.
@@ -260,6 +261,9 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
     polygons: a .gpkg or .geojson path for the visible areas as polygons.
     points: a .gpkg or .geojson path for the observer (or every site) as points with their
         figures.
+    per_site: with sites, a folder for each site's own visibility GeoTIFF, named after the
+        site, as the CLI's --per-site (made if missing; an existing one must be empty unless
+        overwrite).
     method: "fast" (default) or "reference" (judges every cell on its own; same result,
         slower).)") +
          kHeightDoc + kGeometryDoc + R"(
