@@ -51,12 +51,14 @@
 #include "lookfar/siting/SiteSelection.hpp"
 
 // stats
+#include "lookfar/stats/GridStats.hpp"
 #include "lookfar/stats/ViewshedStats.hpp"
 
 // io
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/Dem.hpp"
 #include "lookfar/io/FileNames.hpp"
+#include "lookfar/io/HorizonRasters.hpp"
 #include "lookfar/io/MemoryBudget.hpp"
 #include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/RasterWriter.hpp"
@@ -64,6 +66,8 @@
 #include "lookfar/io/VectorOutput.hpp"
 
 // report
+#include "lookfar/report/GeoJson.hpp"
+#include "lookfar/report/Panorama.hpp"
 #include "lookfar/report/Summary.hpp"
 #include "lookfar/report/SvgPlot.hpp"
 #include "lookfar/report/TextTable.hpp"

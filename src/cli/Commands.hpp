@@ -25,4 +25,11 @@ std::string conventionsText();
 /// The cautions of docs/design.md, printed at the foot of --help.
 std::string cautionText();
 
+/// The names of the commands, for messages: "info, viewshed, … or help".
+std::string commandList(const CLI::App& app);
+/// CLI11's parse error `e` in lookfar's words, one sentence naming the option or argument;
+/// `command` is the subcommand being parsed, if any.
+std::string parseErrorSentence(const CLI::ParseError& e, const CLI::App& app,
+                               const CLI::App* command);
+
 }  // namespace lookfar::cli

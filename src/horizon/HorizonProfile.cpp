@@ -18,8 +18,8 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
                               const HorizonOptions& options, Progress& progress) {
     if (!(step_deg >= kMinHorizonStepDeg && step_deg <= kMaxHorizonStepDeg)) {
         char buf[160];
-        std::snprintf(buf, sizeof buf, "--step: %g° is outside 0.05° to 90°", step_deg);
-        throw UsageError(buf);
+        std::snprintf(buf, sizeof buf, "%g° is outside 0.05° to 90°", step_deg);
+        throw InvalidOption("step_deg", buf);
     }
     if (!dem.contains(col, row))
         throw InputError("the spot is outside the DEM");

@@ -172,13 +172,14 @@ double horizonAzimuthDeg(int index, int directions) {
 
 void validateHorizonOptions(const HorizonOptions& o) {
     if (o.directions < 1 || o.directions > kMaxHorizonDirections) {
-        throw UsageError("--directions: " + std::to_string(o.directions) + " is outside 1 to 3600");
+        throw InvalidOption("directions", std::to_string(o.directions) + " is outside 1 to 3600");
     }
     if (!(o.observer_height_m >= 0) || !std::isfinite(o.observer_height_m)) {
-        throw UsageError("--observer-height: the eye height must be a finite number ≥ 0 metres");
+        throw InvalidOption("observer_height_m",
+                            "the eye height must be a finite number ≥ 0 metres");
     }
     if (!(o.reach_m > 0)) {
-        throw UsageError("--reach: the reach must be a positive distance");
+        throw InvalidOption("reach_m", "the reach must be a positive distance");
     }
     if (!(o.latitude_deg >= -90 && o.latitude_deg <= 90)) {
         throw UsageError("the latitude of the curvature must lie in [−90°, 90°]");

@@ -89,29 +89,6 @@ class CoreSink final : public HorizonSink {
 
 }  // namespace
 
-void ExactGridStats::add(const float* data, int width, int height, std::size_t stride) {
-    for (int r = 0; r < height; ++r) {
-        const float* row = data + r * stride;
-        for (int c = 0; c < width; ++c) {
-            const float v = row[c];
-            if (std::isnan(v))
-                continue;
-            ++cells_;
-            sum_ += static_cast<Sum>(std::ldexp(static_cast<double>(v), 64));
-            if (!(v >= min_))
-                min_ = v;
-            if (!(v <= max_))
-                max_ = v;
-        }
-    }
-}
-
-double ExactGridStats::mean() const {
-    if (cells_ == 0)
-        return std::numeric_limits<double>::quiet_NaN();
-    return std::ldexp(static_cast<double>(sum_), -64) / static_cast<double>(cells_);
-}
-
 std::int64_t horizonRunBytes(int width, int height, int whole_side, const HorizonOptions& o,
                              int threads) {
     const std::int64_t cells = static_cast<std::int64_t>(width) * height;

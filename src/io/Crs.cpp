@@ -80,8 +80,8 @@ CoordinateTransform::CoordinateTransform(const std::string& from, const std::str
     PJ_CONTEXT* c = impl_->ctx.ctx;
     PJ* src = createCrs(c, from);
     if (!src)
-        throw UsageError("--crs: '" + echoText(from) +
-                         "' is not a coordinate reference system PROJ knows");
+        throw InvalidOption(
+            "crs", "'" + echoText(from) + "' is not a coordinate reference system PROJ knows");
     PJ* dst = createCrs(c, to);
     if (!dst) {
         proj_destroy(src);

@@ -95,8 +95,8 @@ Dem openAndDescribe(const std::string& path, const DemReadOptions& options, GDAL
     if (nbands < 1)
         throw InputError(path + ": the raster has no bands");
     if (options.band < 1 || options.band > nbands) {
-        throw UsageError("--band: " + std::to_string(options.band) + " is not a band of " + path +
-                         " (it has " + std::to_string(nbands) + ")");
+        throw InvalidOption("band", std::to_string(options.band) + " is not a band of " + path +
+                                        " (it has " + std::to_string(nbands) + ")");
     }
     std::array<double, 6> gt{};
     if (GDALGetGeoTransform(ds, gt.data()) != CE_None) {

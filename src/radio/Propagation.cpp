@@ -48,7 +48,8 @@ Polarization parsePolarization(const std::string& text) {
         return Polarization::Vertical;
     if (t == "horizontal")
         return Polarization::Horizontal;
-    throw UsageError("--polarization '" + echoText(text) + "' is neither vertical nor horizontal");
+    throw InvalidOption("polarization",
+                        "'" + echoText(text) + "' is neither vertical nor horizontal");
 }
 
 std::string toString(Polarization polarization) {
@@ -57,17 +58,20 @@ std::string toString(Polarization polarization) {
 
 void validateRadioParams(const RadioParams& params) {
     if (!(params.frequency_mhz >= kMinFrequencyMhz && params.frequency_mhz <= kMaxFrequencyMhz)) {
-        throw UsageError("--frequency-mhz " + radioNumberText(params.frequency_mhz) +
-                         " is outside 30 to 50000 MHz, where the propagation method applies");
+        throw InvalidOption(
+            "frequency_mhz",
+            radioNumberText(params.frequency_mhz) +
+                " is outside 30 to 50000 MHz, where the propagation method applies");
     }
     if (!(params.ground_permittivity > 0 && std::isfinite(params.ground_permittivity))) {
-        throw UsageError("--ground-permittivity " + radioNumberText(params.ground_permittivity) +
-                         " must be a positive number (land 22, sea 80)");
+        throw InvalidOption("ground_permittivity",
+                            radioNumberText(params.ground_permittivity) +
+                                " must be a positive number (land 22, sea 80)");
     }
     if (!(params.ground_conductivity_s_m >= 0 && std::isfinite(params.ground_conductivity_s_m))) {
-        throw UsageError("--ground-conductivity " +
-                         radioNumberText(params.ground_conductivity_s_m) +
-                         " must be zero or more, in S/m (land 0.003, sea 5)");
+        throw InvalidOption("ground_conductivity",
+                            radioNumberText(params.ground_conductivity_s_m) +
+                                " must be zero or more, in S/m (land 0.003, sea 5)");
     }
 }
 

@@ -20,29 +20,15 @@
 namespace lookfar {
 namespace {
 
-/// Appends the intermediate samples of T→C to `profile` in order of t (column and row crossings
-/// merged), leaving out no-data samples; distances are t·D.
-void appendSamples(const SightlineSamples& s, int col, int row, double distance_m,
-                   TerrainProfile& profile) {
-    const int step_c = s.dc > 0 ? 1 : -1, step_r = s.dr > 0 ? 1 : -1;
-    int i = s.dc != 0 ? s.c0 + step_c : col;  // next column line, `col` when none is left
-    int j = s.dr != 0 ? s.r0 + step_r : row;  // next row line, `row` when none is left
-    while (i != col || j != row) {
-        double t, z;
-        if (j == row || (i != col && s.columnT(i) <= s.rowT(j))) {
-            t = s.columnT(i);
-            z = s.columnHeight(i);
-            i += step_c;
-        } else {
-            t = s.rowT(j);
-            z = s.rowHeight(j);
-            j += step_r;
-        }
+/// Appends the intermediate samples of T→C to `profile` in order of t, leaving out no-data
+/// samples; distances are t·D.
+void appendSamples(const SightlineSamples& s, double distance_m, TerrainProfile& profile) {
+    s.forEachSample([&](double t, double z) {
         if (std::isnan(z))
-            continue;
+            return;
         profile.distance_m.push_back(t * distance_m);
         profile.height_m.push_back(z);
-    }
+    });
 }
 
 }  // namespace
@@ -57,16 +43,16 @@ void validateSignalInputs(const Grid<float>& dem, const Observer& transmitter,
         throw InputError("the transmitter '" + transmitter.name + "' stands on a no-data cell");
     }
     if (!(transmitter.height_m > 0) || !std::isfinite(transmitter.height_m)) {
-        throw UsageError("--tx-height: " + radioNumberText(transmitter.height_m) +
-                         " m must be a finite height above the ground, > 0");
+        throw InvalidOption("tx_height_m", radioNumberText(transmitter.height_m) +
+                                               " m must be a finite height above the ground, > 0");
     }
     if (!(options.rx_height_m > 0) || !std::isfinite(options.rx_height_m)) {
-        throw UsageError("--rx-height: " + radioNumberText(options.rx_height_m) +
-                         " m must be a finite height above the ground, > 0");
+        throw InvalidOption("rx_height_m", radioNumberText(options.rx_height_m) +
+                                               " m must be a finite height above the ground, > 0");
     }
     if (!(options.reach_m > 0)) {
-        throw UsageError("--reach: " + radioNumberText(options.reach_m) +
-                         " m must be a positive distance");
+        throw InvalidOption("reach_m",
+                            radioNumberText(options.reach_m) + " m must be a positive distance");
     }
 }
 
@@ -105,7 +91,7 @@ SignalGrids referenceSignal(const Grid<float>& dem, const GridGeometry& geometry
             const SightlineSamples samples = rule.samples(c, r, 0.0);
             profile.distance_m.assign(1, 0.0);
             profile.height_m.assign(1, ground_tx);
-            appendSamples(samples, c, r, distance_m, profile);
+            appendSamples(samples, distance_m, profile);
             profile.distance_m.push_back(distance_m);
             profile.height_m.push_back(ground_rx);
             const double drop = curvature.drop(east, north);

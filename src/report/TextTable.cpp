@@ -64,6 +64,12 @@ std::string TextTable::render() const {
     return out;
 }
 
+std::string printfNumber(const char* format, double v) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, format, v);
+    return buf;
+}
+
 std::string formatNumber(double value, int decimals) {
     if (!std::isfinite(value))
         return std::isnan(value) ? "n/a" : (value > 0 ? "∞" : "-∞");

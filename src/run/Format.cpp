@@ -8,12 +8,6 @@
 
 namespace lookfar::run {
 
-std::string printfNumber(const char* format, double v) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, format, v);
-    return buf;
-}
-
 std::string printfFinite(const char* format, double v) {
     return std::isfinite(v) ? printfNumber(format, v) : std::string();
 }

@@ -1,7 +1,5 @@
 #include "lookfar/run/HorizonRun.hpp"
 
-#include <strings.h>
-
 #include <cctype>
 #include <cmath>
 #include <cstring>
@@ -20,14 +18,13 @@
 #include "lookfar/horizon/HorizonProfile.hpp"
 #include "lookfar/horizon/HorizonScan.hpp"
 #include "lookfar/horizon/HorizonTiling.hpp"
-#include "lookfar/report/SvgPlot.hpp"
+#include "lookfar/io/HorizonRasters.hpp"
+#include "lookfar/report/Panorama.hpp"
 #include "lookfar/report/TextTable.hpp"
 
 namespace lookfar::run {
 
 namespace {
-
-constexpr float kHorizonNoData = -9999.0f;  // docs/design.md: horizon rasters use −9999
 
 std::string deg(double v, int decimals = 3) {
     return std::isfinite(v) ? formatNumber(v, decimals) + "°" : "-";
@@ -36,120 +33,12 @@ std::string azimuthText(double az) {
     return printfNumber("%.3f", az) + "° clockwise from grid north";
 }
 
-/// Streams rectangles to the angle and distance rasters, NaN → −9999, with GDAL's cache flushed
-/// every few MiB so that memory stays bounded whatever N.
-class RasterSink final : public HorizonSink {
-  public:
-    RasterSink(RasterWriter* angle, RasterWriter* distance) : angle_(angle), distance_(distance) {
-        for (RasterWriter* w : {angle, distance}) {
-            if (w)
-                w->blockSize(block_cols_, block_rows_);
-        }
-    }
-    bool any_horizon = false;  ///< a cell of a rectangle written had a horizon
-
-    bool wantsRectangles() const override { return angle_ || distance_; }
-    void rectangle(int index, int col0, int row0, int width, int height, int stride,
-                   const float* angle, const float* distance) override {
-        put(angle_, index, col0, row0, width, height, stride, angle);
-        put(distance_, index, col0, row0, width, height, stride, distance);
-        written_ += static_cast<std::size_t>(width) * height * 4;
-        if (written_ > kFlushBytes)
-            flush();
-    }
-    void endDirection(int) override { flush(); }
-
-  private:
-    static constexpr std::size_t kFlushBytes = 2u << 20;
-    void put(RasterWriter* w, int index, int col0, int row0, int width, int height, int stride,
-             const float* data) {
-        if (!w)
-            return;
-        // A rectangle that is one block of the raster is written as a block, past GDAL's cache
-        // (which would keep one block per band: memory growing with N); others as a window.
-        const bool block = block_cols_ > 0 && col0 % block_cols_ == 0 && row0 % block_rows_ == 0 &&
-                           width <= block_cols_ && height <= block_rows_ &&
-                           (width == block_cols_ || col0 + width == w->spec().width) &&
-                           (height == block_rows_ || row0 + height == w->spec().height);
-        const int out_w = block ? block_cols_ : width;
-        buf_.assign(static_cast<std::size_t>(out_w) * (block ? block_rows_ : height),
-                    kHorizonNoData);
-        for (int r = 0; r < height; ++r) {
-            for (int c = 0; c < width; ++c) {
-                const float v = data[static_cast<std::size_t>(r) * stride + c];
-                any_horizon = any_horizon || !std::isnan(v);
-                buf_[static_cast<std::size_t>(r) * out_w + c] = std::isnan(v) ? kHorizonNoData : v;
-            }
-        }
-        if (block)
-            w->writeBlock(index + 1, col0 / block_cols_, row0 / block_rows_, buf_.data());
-        else
-            w->writeWindow(index + 1, col0, row0, width, height, buf_.data(), width);
-    }
-    int block_cols_ = 0, block_rows_ = 0;
-    void flush() {
-        if (angle_)
-            angle_->flush();
-        if (distance_)
-            distance_->flush();
-        written_ = 0;
-    }
-    RasterWriter* angle_;
-    RasterWriter* distance_;
-    std::vector<float> buf_;
-    std::size_t written_ = 0;
-};
-
 nlohmann::json statsJson(const ExactGridStats& s) {
     return {{"cells_with_data", s.cells()},
             {"mean", finiteOrNull(s.mean())},
             {"min", finiteOrNull(s.min())},
             {"max", finiteOrNull(s.max())}};
 }
-
-/// The outputs of the tiles: the angle and distance rasters through `rasters`, the sky-view factor
-/// and the dip written tile core by tile core (NaN → −9999), their statistics summed exactly.
-class TileOutputs final : public TiledHorizonSink {
-  public:
-    TileOutputs(RasterWriter* svf, RasterWriter* dip) : svf_(svf), dip_(dip) {}
-    HorizonSink* rasters = nullptr;
-    ExactGridStats svf_stats, dip_stats;
-
-    void beginDirection(int index, double azimuth_deg) override {
-        rasters->beginDirection(index, azimuth_deg);
-    }
-    void endDirection(int index) override { rasters->endDirection(index); }
-    bool wantsRectangles() const override { return rasters->wantsRectangles(); }
-    void rectangle(int index, int col0, int row0, int width, int height, int stride,
-                   const float* angle, const float* distance) override {
-        rasters->rectangle(index, col0, row0, width, height, stride, angle, distance);
-    }
-    void summary(int col0, int row0, int width, int height, int stride, const float* svf,
-                 const float* dip) override {
-        write(svf_, svf_stats, col0, row0, width, height, stride, svf);
-        write(dip_, dip_stats, col0, row0, width, height, stride, dip);
-    }
-
-  private:
-    void write(RasterWriter* w, ExactGridStats& stats, int col0, int row0, int width, int height,
-               int stride, const float* data) {
-        if (!w || !data)
-            return;
-        stats.add(data, width, height, static_cast<std::size_t>(stride));
-        buf_.resize(static_cast<std::size_t>(width) * height);
-        for (int r = 0; r < height; ++r) {
-            for (int c = 0; c < width; ++c) {
-                const float v = data[static_cast<std::size_t>(r) * stride + c];
-                buf_[static_cast<std::size_t>(r) * width + c] = std::isnan(v) ? kHorizonNoData : v;
-            }
-        }
-        w->writeWindow(1, col0, row0, width, height, buf_.data(), width);
-        w->flush();
-    }
-    RasterWriter* svf_;
-    RasterWriter* dip_;
-    std::vector<float> buf_;
-};
 
 double centreLatitude(const RunContext& ctx) {
     const auto& g = ctx.grid;
@@ -200,7 +89,7 @@ class GridRasters {
         RasterSpec spec = outputSpec(ctx_, path, PixelType::Float32, bands, kHorizonNoData);
         spec.unit_type = unit;
         if (bands > 1)
-            streamingLayout(spec);
+            streamingBandLayout(spec);
         for (int i = 0; i < bands; ++i) {
             spec.band_descriptions.push_back(
                 bands == 1 ? what : what + ", azimuth " + azimuthText(horizonAzimuthDeg(i, n_)));
@@ -221,30 +110,6 @@ class GridRasters {
     }
 
   private:
-    /// Bands are written one direction after another: band-interleaved blocks are written once
-    /// each (pixel interleaving would rewrite every block N times). The fast engine delivers
-    /// 128 × 128 tiles: blocks of that size are written whole, once, and the band of tiles
-    /// waiting for their last line stays small.
-    static void streamingLayout(RasterSpec& spec) {
-        auto given = [&](const char* key) {
-            for (const auto& co : spec.creation_options) {
-                if (strncasecmp(co.c_str(), key, std::strlen(key)) == 0)
-                    return true;
-            }
-            return false;
-        };
-        if (!given("INTERLEAVE="))
-            spec.creation_options.push_back("INTERLEAVE=BAND");
-        // DEFLATE's fastest level: angles and distances are noisy floats that shrink by about
-        // 16 % at any level, and level 6 took 2.4 times as long (2048² × 8, -o and --distance:
-        // 8.4 s against 3.5 s, files 1.5 % smaller).
-        if (!given("ZLEVEL="))
-            spec.creation_options.push_back("ZLEVEL=1");
-        if (!given("TILED=") && !given("BLOCKXSIZE=") && !given("BLOCKYSIZE=")) {
-            spec.creation_options.push_back("BLOCKXSIZE=128");
-            spec.creation_options.push_back("BLOCKYSIZE=128");
-        }
-    }
     RunContext& ctx_;
     int n_;
     std::vector<std::unique_ptr<RasterWriter>> writers_;
@@ -284,7 +149,7 @@ std::string statsText(const ExactGridStats& s, bool degrees) {
 
 /// The summary and table of a run over every cell.
 RunReport finishGrid(RunContext& ctx, const HorizonRunOptions& st, const HorizonOptions& opt,
-                     const HorizonTilePlan& plan, const TileOutputs& outputs,
+                     const HorizonTilePlan& plan, const HorizonTileWriter& outputs,
                      GridRasters& rasters) {
     const int n = opt.directions;
     nlohmann::json j = summaryBase(ctx.run);
@@ -389,8 +254,8 @@ RunReport runGrid(const RunEnv& env, const HorizonRunOptions& st) {
                      "degrees (negative where the horizon is above it all round)",
                      "deg");
 
-    RasterSink sink(angle_w, dist_w);
-    TileOutputs outputs(svf_w, dip_w);
+    HorizonRasterSink sink(angle_w, dist_w);
+    HorizonTileWriter outputs(svf_w, dip_w);
     bool any_data = false;  // a cell of the DEM read holds data
     {
         // The rasters are compressed and written on a thread of their own while the engine
@@ -418,95 +283,6 @@ RunReport runGrid(const RunEnv& env, const HorizonRunOptions& st) {
 }
 
 // ---------------------------------------------------------------------------------------------
-
-/// The panorama of a spot's horizon; `no_terrain` (when not "") is written across it instead of
-/// a horizon.
-std::string svgPanorama(const HorizonProfile& p, const std::string& title,
-                        const std::string& no_terrain) {
-    // Vertical range: the terrain, the horizontal and the sea-horizon dip, with a margin.
-    double lo = -p.sea_horizon_dip_deg, hi = 0;
-    for (const auto& d : p.directions) {
-        if (!d.sample.found)
-            continue;
-        lo = std::fmin(lo, d.sample.angle_deg);
-        hi = std::fmax(hi, d.sample.angle_deg);
-    }
-    const double pad = std::fmax(0.15 * (hi - lo), 0.1);
-    const double y0 = lo - pad, y1 = hi + pad;
-    SvgPlot plot(1100, 440, 0, 360, y0, y1);
-    if (p.directions_cut_by_edge > 0)
-        plot.legendRowBelow();
-    plot.title(title + " — terrain horizon filled");
-    plot.axes("azimuth, degrees clockwise from grid north",
-              "horizon angle, degrees above the eye's horizontal", 45, 0);
-    // Sky above, terrain below: each run of directions with data is one filled band down to the
-    // bottom of the plot; the last direction wraps to 360°.
-    // Directions where the DEM ends within the reach, shaded behind the terrain.
-    SvgStyle cut;
-    cut.stroke = "none";
-    cut.fill = "#e6def0";
-    for (const AzimuthSpan& span : edgeCutSpans(p))
-        plot.xSpan(span.from_deg, span.to_deg, cut);
-    if (p.directions_cut_by_edge > 0)
-        plot.legendBox("shaded: the DEM ends within the reach, so the horizon may lie beyond it",
-                       cut);
-    SvgStyle ground;
-    ground.stroke = "#3d4f2f";
-    ground.fill = "#9aa77a";
-    ground.width = 1.2;
-    const int n = static_cast<int>(p.directions.size());
-    std::vector<double> xs, ys, base;
-    auto flushRun = [&] {
-        if (!xs.empty())
-            plot.band(xs, ys, base, ground);
-        xs.clear(), ys.clear(), base.clear();
-    };
-    for (int i = 0; i <= n; ++i) {
-        const auto& d = p.directions[i % n];
-        if (!d.sample.found) {
-            flushRun();
-            continue;
-        }
-        xs.push_back(i == n ? 360.0 : d.azimuth_deg);
-        ys.push_back(d.sample.angle_deg);
-        base.push_back(y0);
-    }
-    flushRun();
-    SvgStyle horizontal;
-    horizontal.stroke = "#202020";
-    horizontal.width = 1.0;
-    plot.hline(0.0, "eye's horizontal", horizontal);
-    if (p.sea_horizon_dip_deg > 0) {
-        SvgStyle sea;
-        sea.stroke = "#1f5fa8";
-        sea.width = 1.2;
-        sea.dash = "7 4";
-        plot.hline(
-            -p.sea_horizon_dip_deg,
-            "sea horizon for this eye: dip " + printfNumber("%.3f", p.sea_horizon_dip_deg) + "°",
-            sea);
-    }
-    // Compass points along the top of the sky (the lines are labelled where they end).
-    static const char* const kPoints[] = {"N", "NE", "E", "SE", "S", "SW", "W", "NW", "N"};
-    for (int k = 0; k <= 8; ++k) {
-        const char* anchor = k == 0 ? "start" : (k == 8 ? "end" : "middle");
-        plot.text(45.0 * k, y1, kPoints[k], "#555555", anchor, k == 0 ? 4 : (k == 8 ? -4 : 0), 14);
-    }
-    if (!no_terrain.empty()) {
-        std::string sentence = no_terrain;
-        sentence[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(sentence[0])));
-        plot.text(180.0, (y0 + y1) / 2, sentence, "#8c2d04", "middle");
-    }
-    if (std::isfinite(p.highest_angle_deg)) {
-        const bool right = p.highest_azimuth_deg > 270;
-        plot.marker(p.highest_azimuth_deg, p.highest_angle_deg, "", "#8c2d04");
-        plot.text(p.highest_azimuth_deg, p.highest_angle_deg,
-                  "highest " + printfNumber("%.2f", p.highest_angle_deg) + "° at " +
-                      formatDistance(p.highest_distance_m),
-                  "#8c2d04", right ? "end" : "start", right ? -8 : 8, -8);
-    }
-    return plot.render();
-}
 
 /// The options of one spot checked (exit 2 before any file is touched); returns --at.
 MapPoint checkSpotOptions(const HorizonRunOptions& st) {
@@ -707,7 +483,7 @@ RunReport runPoint(const RunEnv& env, const HorizonRunOptions& st) {
         writeTextFile(ctx, st.csv, spotCsv(s.p, toUser));
     if (!st.plot.empty()) {
         writeTextFile(ctx, st.plot,
-                      svgPanorama(s.p,
+                      panoramaSvg(s.p,
                                   "Horizon from " + fmtg(s.given.x) + ", " + fmtg(s.given.y) +
                                       " (eye " + formatNumber(s.p.eye_m, 1) + " m)",
                                   no_terrain));

@@ -12,6 +12,7 @@
 #include "lookfar/io/SitesCsv.hpp"
 #include "lookfar/io/VectorOutput.hpp"
 #include "lookfar/link/Intervisibility.hpp"
+#include "lookfar/report/GeoJson.hpp"
 #include "lookfar/report/TextTable.hpp"
 
 namespace lookfar::run {
@@ -20,10 +21,6 @@ namespace {
 
 double round4(double v) {
     return std::round(v * 1e4) / 1e4;
-}
-
-double round7(double v) {
-    return std::round(v * 1e7) / 1e7;
 }
 
 /// Distance, azimuths and survey figures of a pair, from the points as given (converted to the
@@ -224,10 +221,8 @@ std::string linesGeoJson(const RunContext& ctx, const std::vector<MapPoint>& poi
     for (std::size_t k = 0; k < tally.visible_pairs.size(); ++k) {
         const auto [i, j] = tally.visible_pairs[k];
         const PairGeometry p = pairGeometry(i, j);
-        nlohmann::json line = {
-            {"type", "LineString"},
-            {"coordinates",
-             {{round7(wgs[i].x), round7(wgs[i].y)}, {round7(wgs[j].x), round7(wgs[j].y)}}}};
+        // Longitudes within ±180°, split at the antimeridian (RFC 7946 §3.1.9).
+        nlohmann::json line = geoJsonSegment(wgs[i].x, wgs[i].y, wgs[j].x, wgs[j].y);
         nlohmann::json props = {{"from", stations[i].name},
                                 {"to", stations[j].name},
                                 {"distance_m", milli(p.distance_m)},

@@ -296,11 +296,25 @@ void requireData(const RunContext& ctx, const PlacedSites& placed) {
     }
 }
 
+/// `p` (in the DEM's CRS) on the DEM's own branch of longitudes when it lies outside the DEM
+/// and the same meridian is inside: on a geographic DEM across the antimeridian (179° to 181°)
+/// the point −179.5 is 180.5 (issue 12 item 17c). Other points are returned as they are.
+MapPoint onDemLongitudes(const RunContext& ctx, MapPoint p) {
+    const GridGeometry& g = ctx.grid;
+    if (!ctx.dem.crs.geographic || g.containsMap(p.x, p.y))
+        return p;
+    const double centre = g.mapX((g.width() - 1) / 2.0);
+    const double wrapped = p.x + 360.0 * std::round((centre - p.x) / 360.0);
+    if (g.containsMap(wrapped, p.y))
+        p.x = wrapped;
+    return p;
+}
+
 MapPoint toDemCrs(const RunContext& ctx, const MapPoint& p) {
     if (ctx.options.crs.empty())
-        return p;
+        return onDemLongitudes(ctx, p);
     CoordinateTransform t(ctx.options.crs, ctx.dem.crs.wkt);
-    return t.apply(p);
+    return onDemLongitudes(ctx, t.apply(p));
 }
 
 double latitudeOf(const RunContext& ctx, const MapPoint& p_dem) {
@@ -341,6 +355,7 @@ std::vector<Observer> placeObservers(const RunContext& ctx, const std::vector<st
                 throw InputError(what[i] + buf);
             }
         }
+        p = onDemLongitudes(ctx, p);
         if (!g.containsMap(p.x, p.y)) {
             // The extent is half-open: a point on the east or south edge belongs to no cell.
             char buf[256];

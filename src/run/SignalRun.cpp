@@ -117,6 +117,60 @@ SignalStats summarize(const Grid<float>& loss, const GridGeometry& g, const Sign
     return st;
 }
 
+/// The figures of the strongest level of several transmitters (no loss figures: each cell's
+/// loss is from its own best server).
+SignalStats summarizeLevel(const Grid<float>& level_dbm, const GridGeometry& g,
+                           const SignalRunOptions& s) {
+    SignalStats st;
+    for (int r = 0; r < level_dbm.height(); ++r) {
+        const double area = g.cellAreaM2(r);
+        for (int c = 0; c < level_dbm.width(); ++c) {
+            const float v = level_dbm(c, r);
+            if (std::isnan(v))
+                continue;
+            ++st.evaluated_cells;
+            st.evaluated_area_m2 += area;
+            st.band_area_m2[bandOf(kLevelEdgesDbm, v, true)] += area;
+            if (s.min_level_given && v >= s.min_level_dbm) {
+                ++st.served_cells;
+                st.served_area_m2 += area;
+            }
+        }
+    }
+    return st;
+}
+
+/// The summary's "coverage" object: the evaluated and served areas and the area by band.
+nlohmann::json coverageJson(const SignalStats& st, const SignalRunOptions& s, bool level) {
+    const auto& edges = level ? kLevelEdgesDbm : kLossEdgesDb;
+    nlohmann::json bands = nlohmann::json::object();
+    for (std::size_t b = 0; b <= edges.size(); ++b)
+        bands[bandLabel(edges, b, level)] = st.band_area_m2[b];
+    nlohmann::json c = {{"evaluated_cells", st.evaluated_cells},
+                        {"evaluated_area_m2", st.evaluated_area_m2},
+                        {level ? "area_by_level_m2" : "area_by_loss_m2", bands}};
+    if (s.min_level_given) {
+        c["served_cells"] = st.served_cells;
+        c["served_area_m2"] = st.served_area_m2;
+        c["served_fraction"] =
+            st.evaluated_area_m2 > 0 ? st.served_area_m2 / st.evaluated_area_m2 : 0.0;
+    }
+    return c;
+}
+
+/// The summary's "outputs" object: the rasters written.
+nlohmann::json outputsJson(const SignalRunOptions& s) {
+    nlohmann::json o = {{"loss", s.output}};
+    for (const auto& [key, path] : {std::pair<const char*, const std::string&>{"level", s.level},
+                                    {"best", s.best},
+                                    {"served", s.served},
+                                    {"fresnel", s.fresnel}}) {
+        if (!path.empty())
+            o[key] = path;
+    }
+    return o;
+}
+
 /// The optional radio columns of a sites CSV, per data row (by line).
 struct RadioColumns {
     std::optional<double> frequency_mhz, eirp_dbm, azimuth_deg, beamwidth_deg, tilt_deg, gain_dbi;
@@ -176,29 +230,72 @@ std::map<int, RadioColumns> readRadioColumns(const std::string& path) {
     return out;
 }
 
-RunReport runSignalSites(const RunEnv& env, const SignalRunOptions& s) {
-    if (!s.fresnel.empty())
-        throw UsageError("--fresnel needs a single transmitter (--tx)");
-    if (!s.served.empty() && !s.min_level_given)
-        throw UsageError("--served needs --min-level-dbm: the level that serves");
-    const double tx_h = antennaHeight(s.tx_height, "--tx-height");
-    const double rx_h = antennaHeight(s.rx_height, "--rx-height");
-    MultiSignalOptions opt;
-    opt.ground.ground_permittivity = s.ground_permittivity;
-    opt.ground.ground_conductivity_s_m = s.ground_conductivity;
-    opt.ground.polarization = parsePolarization(s.polarization);
-    opt.rx_height_m = rx_h;
-    opt.rx_gain_dbi = s.rx_gain_dbi;
-    if (s.min_level_given)
-        opt.min_level_dbm = s.min_level_dbm;
+/// The options both forms share, checked (exit 2): the antenna heights and the ground.
+struct RadioCommon {
+    double tx_h = 0, rx_h = 0;
+    Polarization polarization = Polarization::Vertical;
+    RadioParams ground;  ///< permittivity, conductivity, polarization; the frequency from --tx's
+};
 
-    const std::vector<NamedPath> outputs = {{"-o", s.output, OutputKind::Raster},
-                                            {"--level", s.level, OutputKind::Raster},
-                                            {"--served", s.served, OutputKind::Raster},
-                                            {"--best", s.best, OutputKind::Raster}};
-    RunContext ctx = prepareRun(env, "signal", s.common, outputs, {s.sites}, DemCells::Later);
-    ctx.observer_height_m = tx_h;  // the height of rows without one
-    const PlacedSites placed = placeSitesCsv(ctx, s.sites, "transmitter");
+RadioCommon checkRadioOptions(const SignalRunOptions& s) {
+    RadioCommon c;
+    c.tx_h = antennaHeight(s.tx_height, "--tx-height");
+    c.rx_h = antennaHeight(s.rx_height, "--rx-height");
+    c.polarization = parsePolarization(s.polarization);
+    c.ground.ground_permittivity = s.ground_permittivity;
+    c.ground.ground_conductivity_s_m = s.ground_conductivity;
+    c.ground.polarization = c.polarization;
+    return c;
+}
+
+/// What the rasters' metadata records of the receiver, the ground and the method in both forms.
+void describeRadio(RunDescription& run, RunContext& ctx, const SignalRunOptions& s,
+                   const RadioCommon& c) {
+    run.observer_height_m = c.tx_h;
+    run.target_height_m = c.rx_h;
+    run.method = "reference";
+    run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
+    run.extra["RX_HEIGHT_M"] = fmtg(c.rx_h);
+    run.extra["GROUND_PERMITTIVITY"] = fmtg(s.ground_permittivity);
+    run.extra["GROUND_CONDUCTIVITY_S_M"] = fmtg(s.ground_conductivity);
+    run.extra["POLARIZATION"] = toString(c.polarization);
+    run.extra["PROPAGATION_METHOD"] =
+        "ITU-R P.525 free space over the slant distance + ITU-R P.526-15 4.5 delta-Bullington";
+    run.extra["RX_GAIN_DBI"] = fmtg(s.rx_gain_dbi);
+    if (s.min_level_given)
+        run.extra["MIN_LEVEL_DBM"] = fmtg(s.min_level_dbm);
+}
+
+/// The summary's "radio" object, in both forms (the frequency and the power are added by the
+/// form of one transmitter).
+nlohmann::json radioJson(const SignalRunOptions& s, const RadioCommon& c) {
+    return {
+        {"rx_height_m", c.rx_h},
+        {"ground_permittivity", s.ground_permittivity},
+        {"ground_conductivity_s_m", s.ground_conductivity},
+        {"polarization", toString(c.polarization)},
+        {"rx_gain_dbi", s.rx_gain_dbi},
+        {"min_level_dbm", s.min_level_given ? nlohmann::json(s.min_level_dbm) : nlohmann::json()},
+        {"method", "ITU-R P.525 + ITU-R P.526-15 4.5 delta-Bullington (reference)"}};
+}
+
+/// The table of the area by band, with each band's share of the evaluated area.
+std::string bandTable(const std::string& title, const char* column,
+                      const std::array<double, 6>& edges, const std::array<double, 7>& area,
+                      double evaluated_area, bool level) {
+    TextTable b(title);
+    b.setHeader({column, "area", "share of the evaluated area"});
+    for (std::size_t k = 0; k <= edges.size(); ++k) {
+        b.addRow(
+            {bandLabel(edges, k, level), formatArea(area[k]),
+             evaluated_area > 0 ? formatNumber(100.0 * area[k] / evaluated_area, 2) + " %" : "-"});
+    }
+    return b.render();
+}
+
+/// The sites of the CSV with their radio columns, or the options' defaults (exit 3 naming the
+/// line for a height, a frequency or a power missing).
+std::vector<SignalSite> signalSites(const SignalRunOptions& s, const PlacedSites& placed) {
     const std::map<int, RadioColumns> radio = readRadioColumns(s.sites);
     std::vector<SignalSite> sites;
     for (std::size_t i = 0; i < placed.rows.size(); ++i) {
@@ -240,42 +337,20 @@ RunReport runSignalSites(const RunEnv& env, const SignalRunOptions& s) {
         site.pattern.tilt_deg = cols.tilt_deg.value_or(0.0);
         sites.push_back(site);
     }
-    readDemWindow(ctx, workWindow(ctx, placed.observers));
-    requireData(ctx, placed);
-    opt.reach_m = ctx.reach_m;
-    for (SignalSite& site : sites)
-        site.transmitter = inWindow(ctx, site.transmitter);
-    const GridGeometry& g = ctx.dem.geometry;
+    return sites;
+}
 
-    RunDescription& run = ctx.run;
-    run.observer_height_m = tx_h;
-    run.target_height_m = rx_h;
-    run.method = "reference";
-    run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
-    run.extra["SITES"] = s.sites;
-    run.extra["SITE_COUNT"] = std::to_string(sites.size());
-    run.extra["RX_HEIGHT_M"] = fmtg(rx_h);
-    run.extra["GROUND_PERMITTIVITY"] = fmtg(s.ground_permittivity);
-    run.extra["GROUND_CONDUCTIVITY_S_M"] = fmtg(s.ground_conductivity);
-    run.extra["POLARIZATION"] = toString(opt.ground.polarization);
-    run.extra["PROPAGATION_METHOD"] =
-        "ITU-R P.525 free space over the slant distance + ITU-R P.526-15 4.5 delta-Bullington";
-    run.extra["ANTENNA_PATTERN"] =
-        "-min(12(phi/phi3)^2 + 12((theta+tilt)/theta3)^2, 25) dB, theta3 by ITU-R F.1336";
-    run.extra["RX_GAIN_DBI"] = fmtg(s.rx_gain_dbi);
-    if (s.min_level_given)
-        run.extra["MIN_LEVEL_DBM"] = fmtg(s.min_level_dbm);
-
-    MultiSignalResult res = multiSignal(ctx.dem.z, g, ctx.earth, sites, opt, *ctx.progress);
-    ctx.dem.z = Grid<float>();
+/// The rasters of several transmitters, each to its temporary file.
+void writeSitesRasters(RunContext& ctx, const SignalRunOptions& s, const MultiSignalResult& res,
+                       std::size_t count) {
     const float nan = std::numeric_limits<float>::quiet_NaN();
     writeGrid(ctx, s.output, PixelType::Float32, nan, res.loss_db.data(),
-              "basic transmission loss from the best server of " + std::to_string(sites.size()) +
+              "basic transmission loss from the best server of " + std::to_string(count) +
                   " transmitters, dB (median prediction; NaN no data or beyond reach)",
               "dB");
     if (!s.level.empty()) {
         writeGrid(ctx, s.level, PixelType::Float32, nan, res.level_dbm.data(),
-                  "strongest received level of " + std::to_string(sites.size()) +
+                  "strongest received level of " + std::to_string(count) +
                       " transmitters, dBm (receiver gain " + fmtg(s.rx_gain_dbi) +
                       " dBi, median prediction)",
                   "dBm");
@@ -292,35 +367,16 @@ RunReport runSignalSites(const RunEnv& env, const SignalRunOptions& s) {
                   "served by any transmitter: 1 strongest level >= " + fmtg(s.min_level_dbm) +
                       " dBm, 0 below, 255 no data or beyond reach");
     }
+}
 
-    // Summary: the area by strongest level and, per site, what it serves alone and where it is
-    // the best server.
-    std::int64_t evaluated = 0, served_any = 0;
-    double evaluated_area = 0, served_any_area = 0;
-    std::array<double, 7> band_area{};
-    for (int r = 0; r < res.level_dbm.height(); ++r) {
-        const double area = g.cellAreaM2(r);
-        for (int c = 0; c < res.level_dbm.width(); ++c) {
-            const float v = res.level_dbm(c, r);
-            if (std::isnan(v))
-                continue;
-            ++evaluated;
-            evaluated_area += area;
-            band_area[bandOf(kLevelEdgesDbm, v, true)] += area;
-            if (s.min_level_given && v >= s.min_level_dbm) {
-                ++served_any;
-                served_any_area += area;
-            }
-        }
-    }
-    nlohmann::json j = summaryBase(run);
-    j["outputs"] = {{"loss", s.output}};
-    if (!s.level.empty())
-        j["outputs"]["level"] = s.level;
-    if (!s.best.empty())
-        j["outputs"]["best"] = s.best;
-    if (!s.served.empty())
-        j["outputs"]["served"] = s.served;
+/// The summary of several transmitters: per site what it serves alone and where it is the best
+/// server, and the area by strongest level.
+RunReport finishSites(RunContext& ctx, const SignalRunOptions& s, const PlacedSites& placed,
+                      const std::vector<SignalSite>& sites, const MultiSignalResult& res,
+                      const RadioCommon& rc) {
+    const SignalStats st = summarizeLevel(res.level_dbm, ctx.dem.geometry, s);
+    nlohmann::json j = summaryBase(ctx.run);
+    j["outputs"] = outputsJson(s);
     nlohmann::json list = nlohmann::json::array();
     TextTable t("Signal from " + std::to_string(sites.size()) + " transmitters on " + ctx.dem.path);
     t.setHeader({"transmitter", "height", "frequency", "EIRP", "best-server area",
@@ -352,41 +408,94 @@ RunReport runSignalSites(const RunEnv& env, const SignalRunOptions& s) {
                   s.min_level_given ? formatArea(res.served_area_m2[i]) : "-"});
     }
     j["transmitters"] = list;
-    j["radio"] = {
-        {"rx_height_m", rx_h},
-        {"ground_permittivity", s.ground_permittivity},
-        {"ground_conductivity_s_m", s.ground_conductivity},
-        {"polarization", toString(opt.ground.polarization)},
-        {"rx_gain_dbi", s.rx_gain_dbi},
-        {"min_level_dbm", s.min_level_given ? nlohmann::json(s.min_level_dbm) : nlohmann::json()},
-        {"method", "ITU-R P.525 + ITU-R P.526-15 4.5 delta-Bullington (reference)"}};
-    nlohmann::json bands = nlohmann::json::object();
-    for (std::size_t b = 0; b <= kLevelEdgesDbm.size(); ++b)
-        bands[bandLabel(kLevelEdgesDbm, b, true)] = band_area[b];
-    j["coverage"] = {{"evaluated_cells", evaluated},
-                     {"evaluated_area_m2", evaluated_area},
-                     {"area_by_level_m2", bands}};
+    j["radio"] = radioJson(s, rc);
+    j["coverage"] = coverageJson(st, s, true);
+    std::string table = t.render() + "\n" +
+                        bandTable("Area by strongest received level", "level", kLevelEdgesDbm,
+                                  st.band_area_m2, st.evaluated_area_m2, true) +
+                        "\n";
     if (s.min_level_given) {
-        j["coverage"]["served_cells"] = served_any;
-        j["coverage"]["served_area_m2"] = served_any_area;
-        j["coverage"]["served_fraction"] =
-            evaluated_area > 0 ? served_any_area / evaluated_area : 0.0;
-    }
-    TextTable b("Area by strongest received level");
-    b.setHeader({"level", "area", "share of the evaluated area"});
-    for (std::size_t k = 0; k <= kLevelEdgesDbm.size(); ++k) {
-        b.addRow({bandLabel(kLevelEdgesDbm, k, true), formatArea(band_area[k]),
-                  evaluated_area > 0 ? formatNumber(100.0 * band_area[k] / evaluated_area, 2) + " %"
-                                     : "-"});
-    }
-    std::string table = t.render() + "\n" + b.render() + "\n";
-    if (s.min_level_given) {
-        table += "Served by any transmitter: " + formatArea(served_any_area) +
-                 " where the level "
-                 "reaches " +
-                 fmtg(s.min_level_dbm) + " dBm\n";
+        table += "Served by any transmitter: " + formatArea(st.served_area_m2) +
+                 " where the level reaches " + fmtg(s.min_level_dbm) + " dBm\n";
     }
     return finishRun(ctx, j, table);
+}
+
+RunReport runSignalSites(const RunEnv& env, const SignalRunOptions& s) {
+    if (!s.fresnel.empty())
+        throw UsageError("--fresnel needs a single transmitter (--tx)");
+    if (!s.served.empty() && !s.min_level_given)
+        throw UsageError("--served needs --min-level-dbm: the level that serves");
+    const RadioCommon rc = checkRadioOptions(s);
+    const double tx_h = rc.tx_h, rx_h = rc.rx_h;
+    MultiSignalOptions opt;
+    opt.ground = rc.ground;
+    opt.rx_height_m = rx_h;
+    opt.rx_gain_dbi = s.rx_gain_dbi;
+    if (s.min_level_given)
+        opt.min_level_dbm = s.min_level_dbm;
+
+    const std::vector<NamedPath> outputs = {{"-o", s.output, OutputKind::Raster},
+                                            {"--level", s.level, OutputKind::Raster},
+                                            {"--served", s.served, OutputKind::Raster},
+                                            {"--best", s.best, OutputKind::Raster}};
+    RunContext ctx = prepareRun(env, "signal", s.common, outputs, {s.sites}, DemCells::Later);
+    ctx.observer_height_m = tx_h;  // the height of rows without one
+    const PlacedSites placed = placeSitesCsv(ctx, s.sites, "transmitter");
+    std::vector<SignalSite> sites = signalSites(s, placed);
+    readDemWindow(ctx, workWindow(ctx, placed.observers));
+    requireData(ctx, placed);
+    opt.reach_m = ctx.reach_m;
+    for (SignalSite& site : sites)
+        site.transmitter = inWindow(ctx, site.transmitter);
+    const GridGeometry& g = ctx.dem.geometry;
+
+    RunDescription& run = ctx.run;
+    describeRadio(run, ctx, s, rc);
+    run.extra["SITES"] = s.sites;
+    run.extra["SITE_COUNT"] = std::to_string(sites.size());
+    run.extra["ANTENNA_PATTERN"] =
+        "-min(12(phi/phi3)^2 + 12((theta+tilt)/theta3)^2, 25) dB, theta3 by ITU-R F.1336";
+
+    MultiSignalResult res = multiSignal(ctx.dem.z, g, ctx.earth, sites, opt, *ctx.progress);
+    ctx.dem.z = Grid<float>();
+    writeSitesRasters(ctx, s, res, sites.size());
+    return finishSites(ctx, s, placed, sites, res, rc);
+}
+
+/// The rasters of one transmitter `name`, each to its temporary file.
+void writeOneRasters(RunContext& ctx, const SignalRunOptions& s, const SignalGrids& grids,
+                     const std::string& name) {
+    const float nan = std::numeric_limits<float>::quiet_NaN();
+    const std::string freq = fmtg(s.frequency_mhz) + " MHz";
+    writeGrid(ctx, s.output, PixelType::Float32, nan, grids.loss_db.data(),
+              "basic transmission loss from " + name + " at " + freq +
+                  ", dB (median prediction; NaN no data or beyond reach)",
+              "dB");
+    if (s.eirp_given && (!s.level.empty() || !s.served.empty())) {
+        const double budget = s.eirp_dbm + s.rx_gain_dbi;
+        Grid<float> level(grids.loss_db.width(), grids.loss_db.height(), nan);
+        for (std::size_t i = 0; i < level.size(); ++i)
+            level.data()[i] = static_cast<float>(budget - grids.loss_db.data()[i]);
+        if (!s.served.empty()) {
+            const std::vector<std::uint8_t> served = servedCells(level, s.min_level_dbm);
+            writeGrid(ctx, s.served, PixelType::Byte, kNoServed, served.data(),
+                      "served by " + name + ": 1 level >= " + fmtg(s.min_level_dbm) +
+                          " dBm, 0 below, 255 no data or beyond reach");
+        }
+        if (!s.level.empty()) {
+            writeGrid(ctx, s.level, PixelType::Float32, nan, level.data(),
+                      "received level from " + name + ", dBm (EIRP " + fmtg(s.eirp_dbm) +
+                          " dBm, receiver gain " + fmtg(s.rx_gain_dbi) + " dBi, median prediction)",
+                      "dBm");
+        }
+    }
+    if (!s.fresnel.empty()) {
+        writeGrid(ctx, s.fresnel, PixelType::Float32, nan, grids.fresnel.data(),
+                  "worst clearance of the path in first Fresnel zone radii at " + freq +
+                      " (negative: blocked; 0.6 the usual fixed-link criterion; NaN no terrain "
+                      "between, no data or beyond reach)");
+    }
 }
 
 }  // namespace
@@ -530,13 +639,11 @@ RunReport SignalRun::run(const RunEnv& env) {
         throw UsageError("--level needs --eirp-dbm: a level needs the transmitted power");
     if (!s.served.empty() && !s.min_level_given)
         throw UsageError("--served needs --min-level-dbm (and --eirp-dbm): the level that serves");
-    const double tx_h = antennaHeight(s.tx_height, "--tx-height");
-    const double rx_h = antennaHeight(s.rx_height, "--rx-height");
+    const RadioCommon rc = checkRadioOptions(s);
+    const double tx_h = rc.tx_h, rx_h = rc.rx_h;
     SignalOptions opt;
+    opt.radio = rc.ground;
     opt.radio.frequency_mhz = s.frequency_mhz;
-    opt.radio.ground_permittivity = s.ground_permittivity;
-    opt.radio.ground_conductivity_s_m = s.ground_conductivity;
-    opt.radio.polarization = parsePolarization(s.polarization);
     validateRadioParams(opt.radio);
     opt.rx_height_m = rx_h;
     opt.want_fresnel = !s.fresnel.empty();
@@ -555,72 +662,25 @@ RunReport SignalRun::run(const RunEnv& env) {
     opt.reach_m = ctx.reach_m;
 
     RunDescription& run = ctx.run;
-    run.observer_height_m = tx_h;
-    run.target_height_m = rx_h;
-    run.method = "reference";
-    run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
+    describeRadio(run, ctx, s, rc);
     run.extra["TRANSMITTER"] = tx.name;
     run.extra["TRANSMITTER_XY"] = fmtg(given.x) + "," + fmtg(given.y);
     run.extra["TRANSMITTER_CELL"] = std::to_string(tx.col) + "," + std::to_string(tx.row);
     run.extra["TRANSMITTER_GROUND_M"] = printfNumber("%.3f", ground);
     run.extra["TX_HEIGHT_M"] = fmtg(tx_h);
-    run.extra["RX_HEIGHT_M"] = fmtg(rx_h);
     run.extra["FREQUENCY_MHZ"] = fmtg(s.frequency_mhz);
-    run.extra["GROUND_PERMITTIVITY"] = fmtg(s.ground_permittivity);
-    run.extra["GROUND_CONDUCTIVITY_S_M"] = fmtg(s.ground_conductivity);
-    run.extra["POLARIZATION"] = toString(opt.radio.polarization);
-    run.extra["PROPAGATION_METHOD"] =
-        "ITU-R P.525 free space over the slant distance + ITU-R P.526-15 4.5 delta-Bullington";
     if (s.eirp_given)
         run.extra["EIRP_DBM"] = fmtg(s.eirp_dbm);
-    run.extra["RX_GAIN_DBI"] = fmtg(s.rx_gain_dbi);
-    if (s.min_level_given)
-        run.extra["MIN_LEVEL_DBM"] = fmtg(s.min_level_dbm);
 
     const Observer tx_in = inWindow(ctx, tx);
     SignalGrids grids = referenceSignal(ctx.dem.z, g, ctx.earth, tx_in, opt, *ctx.progress);
     ctx.dem.z = Grid<float>();  // the elevations are no longer needed
     const SignalStats st = summarize(grids.loss_db, g, s);
 
-    const float nan = std::numeric_limits<float>::quiet_NaN();
+    writeOneRasters(ctx, s, grids, tx.name);
     const std::string freq = fmtg(s.frequency_mhz) + " MHz";
-    writeGrid(ctx, s.output, PixelType::Float32, nan, grids.loss_db.data(),
-              "basic transmission loss from " + tx.name + " at " + freq +
-                  ", dB (median prediction; NaN no data or beyond reach)",
-              "dB");
-    if (s.eirp_given && (!s.level.empty() || !s.served.empty())) {
-        const double budget = s.eirp_dbm + s.rx_gain_dbi;
-        Grid<float> level(grids.loss_db.width(), grids.loss_db.height(), nan);
-        for (std::size_t i = 0; i < level.size(); ++i)
-            level.data()[i] = static_cast<float>(budget - grids.loss_db.data()[i]);
-        if (!s.served.empty()) {
-            const std::vector<std::uint8_t> served = servedCells(level, s.min_level_dbm);
-            writeGrid(ctx, s.served, PixelType::Byte, kNoServed, served.data(),
-                      "served by " + tx.name + ": 1 level >= " + fmtg(s.min_level_dbm) +
-                          " dBm, 0 below, 255 no data or beyond reach");
-        }
-        if (!s.level.empty()) {
-            writeGrid(ctx, s.level, PixelType::Float32, nan, level.data(),
-                      "received level from " + tx.name + ", dBm (EIRP " + fmtg(s.eirp_dbm) +
-                          " dBm, receiver gain " + fmtg(s.rx_gain_dbi) + " dBi, median prediction)",
-                      "dBm");
-        }
-    }
-    if (opt.want_fresnel) {
-        writeGrid(ctx, s.fresnel, PixelType::Float32, nan, grids.fresnel.data(),
-                  "worst clearance of the path in first Fresnel zone radii at " + freq +
-                      " (negative: blocked; 0.6 the usual fixed-link criterion; NaN no terrain "
-                      "between, no data or beyond reach)");
-    }
-
     nlohmann::json j = summaryBase(run);
-    j["outputs"] = {{"loss", s.output}};
-    if (!s.level.empty())
-        j["outputs"]["level"] = s.level;
-    if (!s.served.empty())
-        j["outputs"]["served"] = s.served;
-    if (!s.fresnel.empty())
-        j["outputs"]["fresnel"] = s.fresnel;
+    j["outputs"] = outputsJson(s);
     const double eff_radius = ctx.earth.shape() == EarthShape::Flat
                                   ? std::numeric_limits<double>::infinity()
                                   : run.earth_radius_m / (1.0 - run.refraction);
@@ -628,34 +688,16 @@ RunReport SignalRun::run(const RunEnv& env) {
                         {"y", given.y},     {"col", tx.col},
                         {"row", tx.row},    {"ground_m", summaryMetres(ground)},
                         {"height_m", tx_h}, {"antenna_m", summaryMetres(ground + tx_h)}};
-    j["radio"] = {
-        {"frequency_mhz", s.frequency_mhz},
-        {"rx_height_m", rx_h},
-        {"ground_permittivity", s.ground_permittivity},
-        {"ground_conductivity_s_m", s.ground_conductivity},
-        {"polarization", toString(opt.radio.polarization)},
-        {"effective_earth_radius_m", finiteOrNull(eff_radius)},
-        {"eirp_dbm", s.eirp_given ? nlohmann::json(s.eirp_dbm) : nlohmann::json()},
-        {"rx_gain_dbi", s.rx_gain_dbi},
-        {"min_level_dbm", s.min_level_given ? nlohmann::json(s.min_level_dbm) : nlohmann::json()},
-        {"method", "ITU-R P.525 + ITU-R P.526-15 4.5 delta-Bullington (reference)"}};
+    j["radio"] = radioJson(s, rc);
+    j["radio"]["frequency_mhz"] = s.frequency_mhz;
+    j["radio"]["effective_earth_radius_m"] = finiteOrNull(eff_radius);
+    j["radio"]["eirp_dbm"] = s.eirp_given ? nlohmann::json(s.eirp_dbm) : nlohmann::json();
     const bool level = s.eirp_given;
     const auto& edges = level ? kLevelEdgesDbm : kLossEdgesDb;
-    nlohmann::json bands = nlohmann::json::object();
-    for (std::size_t b = 0; b <= edges.size(); ++b)
-        bands[bandLabel(edges, b, level)] = st.band_area_m2[b];
-    j["coverage"] = {{"evaluated_cells", st.evaluated_cells},
-                     {"evaluated_area_m2", st.evaluated_area_m2},
-                     {"min_loss_db", finiteOrNull(st.min_loss_db)},
-                     {"median_loss_db", finiteOrNull(st.median_loss_db)},
-                     {"max_loss_db", finiteOrNull(st.max_loss_db)},
-                     {level ? "area_by_level_m2" : "area_by_loss_m2", bands}};
-    if (s.min_level_given) {
-        j["coverage"]["served_cells"] = st.served_cells;
-        j["coverage"]["served_area_m2"] = st.served_area_m2;
-        j["coverage"]["served_fraction"] =
-            st.evaluated_area_m2 > 0 ? st.served_area_m2 / st.evaluated_area_m2 : 0.0;
-    }
+    j["coverage"] = coverageJson(st, s, level);
+    j["coverage"]["min_loss_db"] = finiteOrNull(st.min_loss_db);
+    j["coverage"]["median_loss_db"] = finiteOrNull(st.median_loss_db);
+    j["coverage"]["max_loss_db"] = finiteOrNull(st.max_loss_db);
 
     TextTable t("Signal from " + tx.name + " on " + ctx.dem.path);
     t.add("transmitter", fmtg(given.x) + ", " + fmtg(given.y) + " (cell " + std::to_string(tx.col) +
@@ -680,16 +722,13 @@ RunReport SignalRun::run(const RunEnv& env) {
                             fmtg(s.min_level_dbm) + " dBm (EIRP " + fmtg(s.eirp_dbm) +
                             " dBm, receiver gain " + fmtg(s.rx_gain_dbi) + " dBi)");
     }
-    TextTable b(level ? "Area by received level" : "Area by basic transmission loss");
-    b.setHeader({level ? "level" : "loss", "area", "share of the evaluated area"});
-    for (std::size_t k = 0; k <= edges.size(); ++k) {
-        const double a = st.band_area_m2[k];
-        b.addRow({bandLabel(edges, k, level), formatArea(a),
-                  st.evaluated_area_m2 > 0
-                      ? formatNumber(100.0 * a / st.evaluated_area_m2, 2) + " %"
-                      : "-"});
-    }
-    return finishRun(ctx, j, t.render() + "\n" + b.render() + "\n");
+    return finishRun(
+        ctx, j,
+        t.render() + "\n" +
+            bandTable(level ? "Area by received level" : "Area by basic transmission loss",
+                      level ? "level" : "loss", edges, st.band_area_m2, st.evaluated_area_m2,
+                      level) +
+            "\n");
 }
 
 }  // namespace lookfar::run

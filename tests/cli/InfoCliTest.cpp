@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "../support/CliRunner.hpp"
+#include "../support/RasterFiles.hpp"
 
 using namespace lookfar::testing;
 
@@ -83,19 +84,7 @@ namespace {
 /// A Float32 GeoTIFF of w × h cells of 10 m in `epsg`, no band unit type.
 void writeGrid(const std::string& path, int w, int h, int epsg, const std::vector<float>& z,
                double x0 = 1000, double y0 = 5000) {
-    GDALAllRegister();
-    GDALDatasetH ds =
-        GDALCreate(GDALGetDriverByName("GTiff"), path.c_str(), w, h, 1, GDT_Float32, nullptr);
-    double gt[6] = {x0, 10, 0, y0, 0, -10};
-    GDALSetGeoTransform(ds, gt);
-    OGRSpatialReferenceH srs = OSRNewSpatialReference(nullptr);
-    OSRImportFromEPSG(srs, epsg);
-    GDALSetSpatialRef(ds, srs);
-    OSRDestroySpatialReference(srs);
-    ASSERT_EQ(GDALRasterIO(GDALGetRasterBand(ds, 1), GF_Write, 0, 0, w, h,
-                           const_cast<float*>(z.data()), w, h, GDT_Float32, 0, 0),
-              CE_None);
-    GDALClose(ds);
+    writeFloatGrid(path, w, h, epsg, z, {x0, 10, 0, y0, 0, -10});
 }
 }  // namespace
 

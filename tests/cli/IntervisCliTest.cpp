@@ -14,6 +14,7 @@
 
 #include "../support/CliRunner.hpp"
 #include "../support/CsvFiles.hpp"
+#include "../support/RasterFiles.hpp"
 #include "../support/VectorFiles.hpp"
 
 using namespace lookfar::testing;
@@ -458,4 +459,43 @@ TEST(IntervisCliTest, SurveyQuantitiesAgreeWithProjAndExactGeometry) {
     proj_destroy(to_ll);
     proj_destroy(utm);
     proj_context_destroy(ctx);
+}
+
+// Issue 12 item 17c: a geographic DEM across the antimeridian (longitudes 179.5° to 180.5°,
+// flat ground at 0 m, 0.01° cells). A station written −179.95° is the same place as 180.05° and
+// is placed; the line between stations on either side of 180° is written as RFC 7946 §3.1.9
+// asks: longitudes within ±180°, cut in two at the antimeridian, the cut at the mean latitude
+// (both stations at 9.5°N). The 11 km between 30 m masts over flat ground is clear (radio
+// horizons of about 2 × 22 km with k = 0.25, REFERENCES.md row 4).
+TEST(IntervisCliTest, StationsAcrossTheAntimeridianArePlacedAndTheirLineIsCutThere) {
+    ScratchDir dir;
+    const std::string dem = dir.file("date_line.tif");
+    writeFloatGrid(dem, 100, 100, 4326, std::vector<float>(100 * 100, 0.0f),
+                   {179.5, 0.01, 0, 10.0, 0, -0.01});
+    const std::string csv = dir.file("s.csv");
+    std::ofstream(csv) << "name,x,y,height\nWest,179.95,9.5,30\nEast,-179.95,9.5,30\n";
+    CliResult r = runLookfar({"intervis", dem, "--stations", csv, "--refraction", "0.25", "-o",
+                              dir.file("m.csv"), "--lines", dir.file("l.geojson"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto g = nlohmann::json::parse(readFile(dir.file("l.geojson")));
+    ASSERT_EQ(g["features"].size(), 1u);
+    const auto& geometry = g["features"][0]["geometry"];
+    ASSERT_EQ(geometry["type"], "MultiLineString");
+    for (const auto& part : geometry["coordinates"]) {
+        for (const auto& p : part) {
+            EXPECT_LE(std::fabs(p[0].get<double>()), 180.0);
+            EXPECT_NEAR(p[1].get<double>(), 9.5, 1e-7);
+        }
+    }
+    const auto& c = geometry["coordinates"];
+    EXPECT_NEAR(std::fabs(c[0][1][0].get<double>()), 180.0, 1e-9);
+    EXPECT_DOUBLE_EQ(c[0][1][0].get<double>(), -c[1][0][0].get<double>());
+    // The same point given as −179.95° or as 180.05° makes the same viewshed.
+    r = runLookfar(
+        {"viewshed", dem, "--observer", "-179.95,9.5", "-o", dir.file("a.tif"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    r = runLookfar(
+        {"viewshed", dem, "--observer", "180.05,9.5", "-o", dir.file("b.tif"), "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_EQ(readRaster(dir.file("a.tif")).values, readRaster(dir.file("b.tif")).values);
 }

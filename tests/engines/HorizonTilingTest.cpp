@@ -22,6 +22,7 @@
 #include "lookfar/core/MemorySize.hpp"
 #include "lookfar/horizon/HorizonTiling.hpp"
 #include "lookfar/io/Dem.hpp"
+#include "lookfar/stats/GridStats.hpp"
 
 using namespace lookfar;
 using namespace lookfar::testing;

@@ -58,7 +58,7 @@ def test_read_dem_refuses_what_the_cli_refuses(lookfar):
     assert str(e.value) == sentence
     with pytest.raises(lookfar.UsageError, match="--z-unit: 'furlong' is not m, ft or us-ft"):
         lookfar.read_dem(raster("cone.tif"), z_unit="furlong")
-    with pytest.raises(lookfar.UsageError, match="--band: 2 is not a band of"):
+    with pytest.raises(lookfar.UsageError, match="^band: 2 is not a band of"):
         lookfar.read_dem(raster("cone.tif"), band=2)
 
 

@@ -5,6 +5,9 @@
 #include <gdal.h>
 #include <gdal_utils.h>
 #include <gtest/gtest.h>
+#include <ogr_srs_api.h>
+
+#include <array>
 
 #include <cstddef>
 #include <string>
@@ -83,6 +86,25 @@ inline bool translateRaster(GDALDatasetH src, const std::string& path,
         return false;
     GDALClose(t);
     return true;
+}
+
+/// A one-band Float32 GeoTIFF of `width` × `height` cells (row-major `z`) with geotransform
+/// `gt` in the CRS `epsg`, no band unit type; a test failure when GDAL cannot write it.
+inline void writeFloatGrid(const std::string& path, int width, int height, int epsg,
+                           const std::vector<float>& z, std::array<double, 6> gt) {
+    GDALAllRegister();
+    GDALDatasetH ds = GDALCreate(GDALGetDriverByName("GTiff"), path.c_str(), width, height, 1,
+                                 GDT_Float32, nullptr);
+    ASSERT_NE(ds, nullptr) << path;
+    GDALSetGeoTransform(ds, gt.data());
+    OGRSpatialReferenceH srs = OSRNewSpatialReference(nullptr);
+    OSRImportFromEPSG(srs, epsg);
+    GDALSetSpatialRef(ds, srs);
+    OSRDestroySpatialReference(srs);
+    EXPECT_EQ(GDALRasterIO(GDALGetRasterBand(ds, 1), GF_Write, 0, 0, width, height,
+                           const_cast<float*>(z.data()), width, height, GDT_Float32, 0, 0),
+              CE_None);
+    GDALClose(ds);
 }
 
 }  // namespace lookfar::testing

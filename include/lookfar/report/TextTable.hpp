@@ -22,6 +22,8 @@ class TextTable {
     std::vector<std::vector<std::string>> rows_;
 };
 
+/// `v` through printf's `format` (one double conversion).
+std::string printfNumber(const char* format, double v);
 /// Fixed-point formatting with thousands separators: 1234567.8 → "1 234 567.8".
 std::string formatNumber(double value, int decimals);
 /// Area in the most readable of m², ha, km².

@@ -4,10 +4,10 @@
 
 #include <nlohmann/json.hpp>
 
+#include "lookfar/report/TextTable.hpp"  // printfNumber, formatNumber
+
 namespace lookfar::run {
 
-/// `v` through printf's `format` (one double conversion).
-std::string printfNumber(const char* format, double v);
 /// The same, or "" when `v` is not finite (an empty CSV field).
 std::string printfFinite(const char* format, double v);
 /// `v` with 10 significant digits (%.10g), for coordinates in CSVs and tables.

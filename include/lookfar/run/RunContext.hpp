@@ -170,8 +170,11 @@ void requireData(const RunContext& ctx, const PlacedSites& placed);
 /// naming both lines and the reason (`unique_because`, e.g. "the matrix needs unique names").
 PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const std::string& role,
                           const std::string& unique_because = "");
-/// Converts a point from --crs into the DEM's CRS.
+/// Converts a point from --crs into the DEM's CRS (onDemLongitudes applied).
 MapPoint toDemCrs(const RunContext& ctx, const MapPoint& p);
+/// `p` (in the DEM's CRS) moved by whole turns of longitude onto the DEM when it lies outside a
+/// geographic DEM and the same meridian is inside (a DEM across the antimeridian); else `p`.
+MapPoint onDemLongitudes(const RunContext& ctx, MapPoint p);
 /// Latitude (degrees) of a point given in the DEM's CRS.
 double latitudeOf(const RunContext& ctx, const MapPoint& p_dem);
 

@@ -66,6 +66,28 @@ struct SightlineSamples {
         const int xa = x_floor - col_off;
         return fx == 0.0 ? z(xa, row) : (1.0 - fx) * z(xa, row) + fx * z(xa + 1, row);
     }
+
+    /// The terrain profile of O→C: visits every sample strictly between O and C in order of t,
+    /// column and row crossings merged (where a column and a row line cross the segment at the
+    /// same t, the column sample comes first), as visit(t, height) with height NaN on no-data.
+    /// The radio engine builds each cell's profile from it; the visibility verdicts need only
+    /// the largest gain, in any order (columnGain, rowGain).
+    template <class Visit>
+    void forEachSample(Visit&& visit) const {
+        const int col = c0 + dc, row = r0 + dr;
+        const int step_c = dc > 0 ? 1 : -1, step_r = dr > 0 ? 1 : -1;
+        int i = dc != 0 ? c0 + step_c : col;  // next column line, `col` when none is left
+        int j = dr != 0 ? r0 + step_r : row;  // next row line, `row` when none is left
+        while (i != col || j != row) {
+            if (j == row || (i != col && columnT(i) <= rowT(j))) {
+                visit(columnT(i), columnHeight(i));
+                i += step_c;
+            } else {
+                visit(rowT(j), rowHeight(j));
+                j += step_r;
+            }
+        }
+    }
 };
 
 }  // namespace lookfar
