@@ -213,7 +213,7 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
            const py::object& method, const py::object& threads, const py::object& margin,
            const py::object& angle, const py::object& output, const py::object& sites,
            const py::object& name, const py::object& polygons, const py::object& points,
-           bool overwrite, const py::object& progress) {
+           const py::object& per_site, bool overwrite, const py::object& progress) {
             run::ViewshedRun command;
             Call call(command, dem);
             const CommonArgs common{observer_height, target_height, reach,  refraction, earth_model,
@@ -231,6 +231,7 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
             call.add(Output("angle", "--angle", "angle.tif", Kind::Raster, angle));
             call.add(Output("polygons", "--polygons", "polygons.gpkg", Kind::File, polygons));
             call.add(Output("points", "--points", "points.gpkg", Kind::File, points));
+            call.add(Output("per_site", "--per-site", "per_site", Kind::File, per_site));
             py::object r = call.run(overwrite, progress);
             r.attr(many ? "visible" : "count") = py::none();
             return r;
@@ -242,8 +243,8 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
         py::arg("method") = "fast", py::arg("threads") = py::none(), py::arg("margin") = false,
         py::arg("angle") = false, py::arg("output") = py::none(), py::arg("sites") = py::none(),
         py::arg("name") = "observer", py::arg("polygons") = py::none(),
-        py::arg("points") = py::none(), py::arg("overwrite") = false,
-        py::arg("progress") = py::none(),
+        py::arg("points") = py::none(), py::arg("per_site") = py::none(),
+        py::arg("overwrite") = false, py::arg("progress") = py::none(),
         (std::string(R"(Which cells a target can be seen from (lookfar viewshed).
 
     dem: a path or a lookfar.Dem.
@@ -260,6 +261,9 @@ Returns a Result: .summary (the CLI's summary JSON as a dict), .table.)");
     polygons: a .gpkg or .geojson path for the visible areas as polygons.
     points: a .gpkg or .geojson path for the observer (or every site) as points with their
         figures.
+    per_site: with sites, a folder for each site's own visibility GeoTIFF, named after the
+        site, as the CLI's --per-site (made if missing; an existing one must be empty unless
+        overwrite).
     method: "fast" (default) or "reference" (judges every cell on its own; same result,
         slower).)") +
          kHeightDoc + kGeometryDoc + R"(
@@ -348,6 +352,7 @@ rasters hold -9999: no terrain with data in that direction within reach.)")
             r.attr("azimuth") = columns["azimuth_deg"];
             r.attr("angle") = columns["angle_deg"];
             r.attr("distance") = columns["distance_m"];
+            r.attr("edge_distance") = columns["edge_distance_m"];
             return r;
         },
         py::arg("dem"), py::arg("at"), py::arg("step") = 1.0, py::arg("observer_height") = 1.7,
@@ -366,8 +371,10 @@ rasters hold -9999: no terrain with data in that direction within reach.)")
 
 Returns a Result: .azimuth (degrees clockwise from grid north), .angle (degrees above the eye's
 horizontal) and .distance (ground distance to the horizon point, metres) as numpy arrays, one
-value per direction, NaN where no terrain lies within the DEM and reach; .horizon (every column
-of the CSV: azimuth_deg, angle_deg, distance_m, x, y, elevation_m; x, y in crs); .summary (with
+value per direction, NaN where no terrain lies within the DEM and reach; .edge_distance (ground
+distance to where the DEM ends in that direction, metres, NaN where that is beyond the reach);
+.horizon (every column of the CSV: azimuth_deg, angle_deg, distance_m, x, y, elevation_m,
+edge_distance_m; x, y in crs); .summary (with
 the lowest and highest horizon, the open sectors, the sky-view factor and the sea-horizon dip),
 .table.)")
             .c_str());

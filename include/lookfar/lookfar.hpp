@@ -33,6 +33,7 @@
 
 // horizon
 #include "lookfar/horizon/AsyncSink.hpp"
+#include "lookfar/horizon/HorizonEdge.hpp"
 #include "lookfar/horizon/HorizonProfile.hpp"
 #include "lookfar/horizon/HorizonScan.hpp"
 #include "lookfar/horizon/HorizonTiling.hpp"
@@ -61,6 +62,7 @@
 // io
 #include "lookfar/io/Crs.hpp"
 #include "lookfar/io/Dem.hpp"
+#include "lookfar/io/FileNames.hpp"
 #include "lookfar/io/HorizonRasters.hpp"
 #include "lookfar/io/MemoryBudget.hpp"
 #include "lookfar/io/OutputSet.hpp"

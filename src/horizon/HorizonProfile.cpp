@@ -1,6 +1,7 @@
 // The 360° horizon of one spot and its summary (see HorizonProfile.hpp for the notation).
 #include "lookfar/horizon/HorizonProfile.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <limits>
@@ -8,6 +9,7 @@
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/ParallelFor.hpp"
 #include "lookfar/core/Units.hpp"
+#include "lookfar/horizon/HorizonEdge.hpp"
 
 namespace lookfar {
 
@@ -26,6 +28,7 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
     HorizonOptions o = options;
     o.directions = 1;  // only the geometry options matter here
     const HorizonScan scan(dem, geometry, earth, o);
+    const DemEdge edge(geometry);
 
     const double nan = std::numeric_limits<double>::quiet_NaN();
     HorizonProfile p;
@@ -43,6 +46,9 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
         [&](std::int64_t i) {
             p.directions[i].azimuth_deg = static_cast<double>(i) * step_deg;
             p.directions[i].sample = scan.referenceAt(col, row, static_cast<double>(i) * step_deg);
+            const double d_edge = edge.distanceM(col, row, static_cast<double>(i) * step_deg);
+            if (d_edge <= options.reach_m)
+                p.directions[i].edge_distance_m = d_edge;
         },
         loop);
     progress.end();
@@ -53,6 +59,14 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
     auto weight = [&](int i) { return std::fmin(step_deg, 360.0 - i * step_deg); };
     double w_sum = 0, angle_sum = 0, sin_sum = 0;
     for (int i = 0; i < n; ++i) {
+        const double d_edge = p.directions[i].edge_distance_m;
+        if (std::isfinite(d_edge)) {
+            ++p.directions_cut_by_edge;
+            if (!(d_edge >= p.nearest_edge_m)) {
+                p.nearest_edge_m = d_edge;
+                p.nearest_edge_azimuth_deg = p.directions[i].azimuth_deg;
+            }
+        }
         const HorizonSample& s = p.directions[i].sample;
         if (!s.found)
             continue;
@@ -122,6 +136,32 @@ HorizonProfile horizonProfile(const Grid<float>& dem, const GridGeometry& geomet
         p.sea_horizon_distance_m = std::numeric_limits<double>::infinity();
     }
     return p;
+}
+
+std::vector<AzimuthSpan> edgeCutSpans(const HorizonProfile& p) {
+    std::vector<AzimuthSpan> pieces;
+    const double half = p.step_deg / 2;
+    for (const HorizonDirection& d : p.directions) {
+        if (!std::isfinite(d.edge_distance_m))
+            continue;
+        const double from = d.azimuth_deg - half, to = std::fmin(d.azimuth_deg + half, 360.0);
+        if (from < 0) {  // the sector of north: its western half at the right end
+            pieces.push_back({360.0 + from, 360.0});
+            pieces.push_back({0.0, to});
+        } else {
+            pieces.push_back({from, to});
+        }
+    }
+    std::sort(pieces.begin(), pieces.end(),
+              [](const AzimuthSpan& a, const AzimuthSpan& b) { return a.from_deg < b.from_deg; });
+    std::vector<AzimuthSpan> spans;
+    for (const AzimuthSpan& s : pieces) {
+        if (!spans.empty() && s.from_deg <= spans.back().to_deg + 1e-9)
+            spans.back().to_deg = std::fmax(spans.back().to_deg, s.to_deg);
+        else
+            spans.push_back(s);
+    }
+    return spans;
 }
 
 }  // namespace lookfar

@@ -137,6 +137,20 @@ OutputSet::~OutputSet() {
         return;
     for (const auto& e : entries_)
         std::remove(e.temp.c_str());
+    for (auto f = made_folders_.rbegin(); f != made_folders_.rend(); ++f)
+        rmdir(f->c_str());  // only when empty: nothing but this run's temporaries was there
+}
+
+void OutputSet::makeFolder(const std::string& path) {
+    struct stat st {};
+    if (stat(path.c_str(), &st) == 0 && S_ISDIR(st.st_mode))
+        return;
+    if (mkdir(path.c_str(), 0777) != 0) {
+        int err = errno;
+        throw OutputError(path + ": cannot make the folder (" +
+                          writeFailureReason(path, std::strerror(err), err) + ")");
+    }
+    made_folders_.push_back(path);
 }
 
 void OutputSet::addRaster(RasterWriter& writer) {

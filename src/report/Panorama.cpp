@@ -23,9 +23,20 @@ std::string panoramaSvg(const HorizonProfile& p, const std::string& title,
     const double pad = std::fmax(0.15 * (hi - lo), 0.1);
     const double y0 = lo - pad, y1 = hi + pad;
     SvgPlot plot(1100, 440, 0, 360, y0, y1);
+    if (p.directions_cut_by_edge > 0)
+        plot.legendRowBelow();
     plot.title(title + " — terrain horizon filled");
     plot.axes("azimuth, degrees clockwise from grid north",
               "horizon angle, degrees above the eye's horizontal", 45, 0);
+    // Directions where the DEM ends within the reach, shaded behind the terrain.
+    SvgStyle cut;
+    cut.stroke = "none";
+    cut.fill = "#e6def0";
+    for (const AzimuthSpan& span : edgeCutSpans(p))
+        plot.xSpan(span.from_deg, span.to_deg, cut);
+    if (p.directions_cut_by_edge > 0)
+        plot.legendBox("shaded: the DEM ends within the reach, so the horizon may lie beyond it",
+                       cut);
     // Sky above, terrain below: each run of directions with data is one filled band down to the
     // bottom of the plot; the last direction wraps to 360°.
     SvgStyle ground;

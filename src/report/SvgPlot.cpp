@@ -102,7 +102,7 @@ void SvgPlot::axes(const std::string& x_label, const std::string& y_label, doubl
         g += "<text x=\"" + num(left_ - 6) + "\" y=\"" + num(py(y) + 4) +
              "\" text-anchor=\"end\">" + tickLabel(y, ys) + "</text>\n";
     }
-    g += "<text x=\"" + num((left_ + w_ - right_) / 2) + "\" y=\"" + num(h_ - 12) +
+    g += "<text x=\"" + num((left_ + w_ - right_) / 2) + "\" y=\"" + num(h_ - legend_row_ - 12) +
          "\" text-anchor=\"middle\" font-size=\"13\">" + svgEscape(x_label) + "</text>\n";
     g += "<text transform=\"translate(16," + num((top_ + h_ - bottom_) / 2) +
          ") rotate(-90)\" text-anchor=\"middle\" font-size=\"13\">" + svgEscape(y_label) +
@@ -164,8 +164,26 @@ void SvgPlot::text(double x, double y, const std::string& label, const std::stri
              "</text>\n";
 }
 
+void SvgPlot::xSpan(double x0, double x1, const SvgStyle& style) {
+    body_ += "<rect x=\"" + num(px(x0)) + "\" y=\"" + num(top_) + "\" width=\"" +
+             num(px(x1) - px(x0)) + "\" height=\"" + num(h_ - top_ - bottom_) + "\"" +
+             styleAttrs(style) + "/>\n";
+}
+
 void SvgPlot::legend(const std::string& label, const SvgStyle& style) {
-    legend_.emplace_back(label, style);
+    legend_.push_back({label, style, false});
+}
+
+void SvgPlot::legendBox(const std::string& label, const SvgStyle& style) {
+    legend_.push_back({label, style, true});
+}
+
+void SvgPlot::legendRowBelow() {
+    if (legend_row_ > 0)
+        return;
+    legend_row_ = 22;
+    h_ += legend_row_;
+    bottom_ += legend_row_;
 }
 
 std::string SvgPlot::render() const {
@@ -192,16 +210,23 @@ std::string SvgPlot::render() const {
     } else {
         out += "<g clip-path=\"url(#plotarea)\">\n" + body_ + "</g>\n";
     }
-    double ly = top_ + 14;
-    for (const auto& [label, style] : legend_) {
-        double lx = w_ - right_ - 170;
-        SvgStyle s = style;
-        out += "<line x1=\"" + num(lx) + "\" y1=\"" + num(ly - 4) + "\" x2=\"" + num(lx + 22) +
-               "\" y2=\"" + num(ly - 4) + "\"" + styleAttrs(s) + "/>\n";
+    double ly = legend_row_ > 0 ? h_ - 8 : top_ + 14;
+    double lx = legend_row_ > 0 ? left_ : w_ - right_ - 170;
+    for (const LegendEntry& e : legend_) {
+        if (e.box) {
+            out += "<rect x=\"" + num(lx) + "\" y=\"" + num(ly - 9) + "\" width=\"22\" " +
+                   "height=\"10\"" + styleAttrs(e.style) + "/>\n";
+        } else {
+            out += "<line x1=\"" + num(lx) + "\" y1=\"" + num(ly - 4) + "\" x2=\"" + num(lx + 22) +
+                   "\" y2=\"" + num(ly - 4) + "\"" + styleAttrs(e.style) + "/>\n";
+        }
         out += "<text x=\"" + num(lx + 28) + "\" y=\"" + num(ly) +
-               "\" font-family=\"sans-serif\" font-size=\"11\" fill=\"#222\">" + svgEscape(label) +
-               "</text>\n";
-        ly += 16;
+               "\" font-family=\"sans-serif\" font-size=\"11\" fill=\"#222\">" +
+               svgEscape(e.label) + "</text>\n";
+        if (legend_row_ > 0)
+            lx += 28 + 6.5 * static_cast<double>(e.label.size()) + 24;  // about 6.5 px a character
+        else
+            ly += 16;
     }
     out += "</svg>\n</svg>\n";
     return out;

@@ -14,6 +14,7 @@
 #include "lookfar/core/Errors.hpp"
 #include "lookfar/core/MemorySize.hpp"
 #include "lookfar/horizon/AsyncSink.hpp"
+#include "lookfar/horizon/HorizonEdge.hpp"
 #include "lookfar/horizon/HorizonProfile.hpp"
 #include "lookfar/horizon/HorizonScan.hpp"
 #include "lookfar/horizon/HorizonTiling.hpp"
@@ -178,6 +179,14 @@ RunReport finishGrid(RunContext& ctx, const HorizonRunOptions& st, const Horizon
                            std::to_string(plan.core) + " cells, halo " + std::to_string(plan.halo) +
                            " cells (--memory " + formatMemorySize(ctx.memory.budget) + ")");
     }
+    const std::int64_t cut = cellsWithinReachOfEdge(ctx.grid, ctx.reach_m);
+    const std::int64_t cells = static_cast<std::int64_t>(ctx.grid.width()) * ctx.grid.height();
+    const double fraction = static_cast<double>(cut) / static_cast<double>(cells);
+    j["edge"] = {{"cells_cut", cut}, {"cells", cells}, {"fraction_cut", fraction}};
+    t.add("DEM's edge", formatNumber(static_cast<double>(cut), 0) + " cells (" +
+                            formatNumber(100.0 * fraction, 2) +
+                            " %) lie within the reach of the DEM's edge: their horizon may lie "
+                            "beyond the DEM");
     t.add("outputs", rasters.paths());
     rasters.handOver();
     return finishRun(ctx, j, t.render());
@@ -342,7 +351,11 @@ nlohmann::json spotJson(const HorizonRunOptions& st, const Spot& s, const nlohma
             {"dip_deg", finiteOrNull(p.dip_deg)},
             {"open_sectors", sectors},
             {"sea_horizon_dip_deg", p.sea_horizon_dip_deg},
-            {"sea_horizon_distance_m", finiteOrNull(p.sea_horizon_distance_m)}};
+            {"sea_horizon_distance_m", finiteOrNull(p.sea_horizon_distance_m)},
+            {"edge",
+             {{"directions_cut", p.directions_cut_by_edge},
+              {"nearest_m", finiteOrNull(p.nearest_edge_m)},
+              {"nearest_azimuth_deg", finiteOrNull(p.nearest_edge_azimuth_deg)}}}};
 }
 
 std::string spotTable(const RunContext& ctx, const HorizonRunOptions& st, const Spot& s,
@@ -382,6 +395,13 @@ std::string spotTable(const RunContext& ctx, const HorizonRunOptions& st, const 
               (p.sea_horizon_dip_deg > 0
                    ? ", sea horizon at " + formatDistance(p.sea_horizon_distance_m)
                    : ""));
+    t.add("DEM's edge", p.directions_cut_by_edge == 0
+                            ? "beyond the reach in every direction"
+                            : "within the reach in " + std::to_string(p.directions_cut_by_edge) +
+                                  " of " + std::to_string(p.directions.size()) +
+                                  " directions, nearest " + formatDistance(p.nearest_edge_m) +
+                                  " at azimuth " + deg(p.nearest_edge_azimuth_deg, 1) +
+                                  " (the horizon there may lie beyond the DEM)");
     t.add("earth", ctx.run.earth_model + ", refraction k = " + fmtg(ctx.run.refraction));
     return t.render();
 }
@@ -389,7 +409,7 @@ std::string spotTable(const RunContext& ctx, const HorizonRunOptions& st, const 
 /// The CSV of a spot's horizon: one row per direction, the horizon point in --crs.
 template <typename ToUser>
 std::string spotCsv(const HorizonProfile& p, const ToUser& toUser) {
-    std::string csv = "azimuth_deg,angle_deg,distance_m,x,y,elevation_m\n";
+    std::string csv = "azimuth_deg,angle_deg,distance_m,x,y,elevation_m,edge_distance_m\n";
     for (const auto& d : p.directions) {
         csv += printfNumber("%.4f", d.azimuth_deg);
         if (d.sample.found) {
@@ -400,6 +420,9 @@ std::string spotCsv(const HorizonProfile& p, const ToUser& toUser) {
         } else {
             csv += ",,,,,";
         }
+        csv += ",";
+        if (std::isfinite(d.edge_distance_m))
+            csv += printfNumber("%.3f", d.edge_distance_m);
         csv += "\n";
     }
     return csv;
@@ -471,22 +494,28 @@ RunReport runPoint(const RunEnv& env, const HorizonRunOptions& st) {
 }  // namespace
 
 CommandHelp HorizonRun::help() const {
-    return {"horizon",
-            "the horizon of every cell in N directions (angles, distances, sky-view factor, dip), "
-            "or the 360° horizon of one spot (--at) with a CSV, an SVG panorama and a summary",
-            "\nEvery cell: the eye stands at the cell's centre, --observer-height above its "
-            "ground.\n"
-            "  A direction with no terrain sample with data inside the DEM within reach is -9999 "
-            "in\n"
-            "  that band and is left out of the sky-view factor and the dip. Output is streamed\n"
-            "  direction by direction: memory does not grow with N. A DEM whose run does not fit\n"
-            "  --memory is worked tile by tile, each tile read with a halo of --reach (the same\n"
-            "  results); without --reach it is refused.\n"
-            "One spot (--at): the horizon every --step degrees, the lowest and highest horizon, "
-            "the\n"
-            "  sectors where the horizon is below the horizontal, the mean angle, the sky-view "
-            "factor\n"
-            "  and the dip of the sea horizon for the eye's height.\n"};
+    return {
+        "horizon",
+        "the horizon of every cell in N directions (angles, distances, sky-view factor, dip), "
+        "or the 360° horizon of one spot (--at) with a CSV, an SVG panorama and a summary",
+        "\nEvery cell: the eye stands at the cell's centre, --observer-height above its "
+        "ground.\n"
+        "  A direction with no terrain sample with data inside the DEM within reach is -9999 "
+        "in\n"
+        "  that band and is left out of the sky-view factor and the dip. Output is streamed\n"
+        "  direction by direction: memory does not grow with N. A DEM whose run does not fit\n"
+        "  --memory is worked tile by tile, each tile read with a halo of --reach (the same\n"
+        "  results); without --reach it is refused.\n"
+        "One spot (--at): the horizon every --step degrees, the lowest and highest horizon, "
+        "the\n"
+        "  sectors where the horizon is below the horizontal, the mean angle, the sky-view "
+        "factor\n"
+        "  and the dip of the sea horizon for the eye's height.\n"
+        "The DEM's edge: where the DEM ends within the reach, terrain beyond it may raise the "
+        "true\n"
+        "  horizon; --at gives the distance to the edge per direction and shades those "
+        "directions,\n"
+        "  and the summary of every cell counts the cells less than the reach from the edge.\n"};
 }
 
 OptionTable HorizonRun::declare() {
@@ -531,12 +560,13 @@ OptionTable HorizonRun::declare() {
                     .noteGiven(&st.step_given));
     t.push_back(OptionDecl("--csv", &st.csv,
                            "CSV of the horizon of --at: azimuth_deg,angle_deg,distance_m,x,y,"
-                           "elevation_m (x, y of the horizon point in --crs)",
+                           "elevation_m,edge_distance_m (x, y of the horizon point in --crs; "
+                           "edge_distance_m: metres to where the DEM ends, empty beyond the reach)",
                            spot)
                     .fileType());
     t.push_back(OptionDecl("--plot", &st.plot,
                            "SVG panorama of the horizon of --at with the eye's horizontal and the "
-                           "sea-horizon dip",
+                           "sea-horizon dip; directions where the DEM ends within the reach shaded",
                            spot)
                     .fileType());
     return t;

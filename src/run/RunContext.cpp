@@ -15,6 +15,7 @@
 #include "lookfar/core/MemorySize.hpp"
 #include "lookfar/core/Text.hpp"
 #include "lookfar/core/Units.hpp"
+#include "lookfar/io/FileNames.hpp"
 
 namespace lookfar::run {
 
@@ -65,6 +66,7 @@ void checkOutputFormats(const std::vector<NamedPath>& outputs) {
             checkRasterExtension(out.path, out.option);
         else if (out.kind == OutputKind::Vector)
             vectorFormatFor(out.path, out.option);
+        // A Folder's name is free: its files are named by the command.
     }
 }
 
@@ -87,8 +89,12 @@ void checkOutputs(const CommonOptions& options, const std::vector<NamedPath>& ou
             }
         }
     }
-    for (const auto& out : all)
-        checkOutputPath(out.path, inputs, options.overwrite);
+    for (const auto& out : all) {
+        if (out.kind == OutputKind::Folder)
+            checkOutputFolder(out.path, out.option, options.overwrite);
+        else
+            checkOutputPath(out.path, inputs, options.overwrite);
+    }
 }
 
 /// The summary's and the metadata's description of the run.
@@ -409,13 +415,17 @@ PlacedSites placeSitesCsv(const RunContext& ctx, const std::string& path, const 
     return placed;
 }
 
-RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
-                      double nodata) {
+namespace {
+
+/// outputSpec for work on `window`, whose geometry is `window_grid`.
+RasterSpec specOver(const RunContext& ctx, const CellWindow& window,
+                    const GridGeometry& window_grid, const std::string& path, PixelType type,
+                    int bands, double nodata) {
     RasterSpec spec;
     spec.path = path;
-    // --extent reach: the window read, on the DEM's grid lines; dem: the whole grid, of which
-    // only the blocks the window touches are written (the others stay sparse: no data).
-    const GridGeometry& grid = reachExtent(ctx) ? ctx.dem.geometry : ctx.grid;
+    // --extent reach: the window, on the DEM's grid lines; dem: the whole grid, of which only
+    // the blocks the window touches are written (the others stay sparse: no data).
+    const GridGeometry& grid = reachExtent(ctx) ? window_grid : ctx.grid;
     spec.width = grid.width();
     spec.height = grid.height();
     spec.bands = bands;
@@ -437,14 +447,27 @@ RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType 
         threads_given = threads_given || strncasecmp(co.c_str(), "NUM_THREADS=", 12) == 0;
     if (ctx.options.threads > 0 && !threads_given)
         spec.creation_options.push_back("NUM_THREADS=" + std::to_string(ctx.options.threads));
-    const bool whole =
-        ctx.window.width == ctx.grid.width() && ctx.window.height == ctx.grid.height();
+    const bool whole = window.width == ctx.grid.width() && window.height == ctx.grid.height();
     bool sparse_given = false;
     for (const auto& co : spec.creation_options)
         sparse_given = sparse_given || strncasecmp(co.c_str(), "SPARSE_OK=", 10) == 0;
     if (!whole && !reachExtent(ctx) && !sparse_given)
         spec.creation_options.push_back("SPARSE_OK=TRUE");
     return spec;
+}
+
+}  // namespace
+
+RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
+                      double nodata) {
+    return specOver(ctx, ctx.window, ctx.dem.geometry, path, type, bands, nodata);
+}
+
+RasterSpec outputSpecFor(const RunContext& ctx, const CellWindow& window, const std::string& path,
+                         PixelType type, int bands, double nodata) {
+    return specOver(ctx, window,
+                    ctx.grid.window(window.col0, window.row0, window.width, window.height), path,
+                    type, bands, nodata);
 }
 
 void writeWindowBand(const RunContext& ctx, RasterWriter& writer, int band, const void* data) {

@@ -1,5 +1,7 @@
 #include "lookfar/run/ViewshedRun.hpp"
 
+#include <sys/stat.h>
+
 #include <cmath>
 #include <cstdio>
 #include <limits>
@@ -8,6 +10,7 @@
 #include <vector>
 
 #include "lookfar/core/Errors.hpp"
+#include "lookfar/io/FileNames.hpp"
 #include "lookfar/io/OutputSet.hpp"
 #include "lookfar/io/SitesCsv.hpp"
 #include "lookfar/io/VectorOutput.hpp"
@@ -34,6 +37,7 @@ struct PlacedSite {
     double x = 0, y = 0;  ///< as given, in --crs
     MapPoint dem_xy;      ///< the point in the DEM's CRS
     double ground_m = 0;
+    int line = 0;  ///< line of the sites CSV (0 for --observer)
 };
 
 nlohmann::json observerJson(const RunContext& ctx, const PlacedSite& p, const ViewshedStats& s) {
@@ -101,6 +105,7 @@ std::vector<PlacedSite> placeViewshedObservers(RunContext& ctx, const ViewshedRu
             p.y = rows.rows[i].y;
             p.observer = rows.observers[i];
             p.dem_xy = rows.points_dem[i];
+            p.line = rows.rows[i].line;
             placed.push_back(p);
         }
         readDemWindow(ctx, workWindow(ctx, rows.observers));
@@ -111,19 +116,23 @@ std::vector<PlacedSite> placeViewshedObservers(RunContext& ctx, const ViewshedRu
     return placed;
 }
 
+/// What a raster's metadata records of its one observer.
+void describeObserver(RunDescription& run, const PlacedSite& p) {
+    run.extra["OBSERVER"] = p.observer.name;
+    run.extra["OBSERVER_XY"] = fmtg(p.x) + "," + fmtg(p.y);
+    run.extra["OBSERVER_CELL"] =
+        std::to_string(p.observer.col) + "," + std::to_string(p.observer.row);
+    run.extra["OBSERVER_GROUND_M"] = fixed3(p.ground_m);
+    run.extra["OBSERVER_EYE_M"] = fixed3(p.ground_m + p.observer.height_m);
+}
+
 /// What the rasters' metadata records of the observers.
 void describeObservers(RunContext& ctx, const ViewshedRunOptions& st, bool single,
                        const std::vector<PlacedSite>& placed) {
     RunDescription& run = ctx.run;
     run.extra["COORDINATE_CRS"] = coordinateCrs(ctx);
     if (single) {
-        const PlacedSite& p = placed.front();
-        run.extra["OBSERVER"] = p.observer.name;
-        run.extra["OBSERVER_XY"] = fmtg(p.x) + "," + fmtg(p.y);
-        run.extra["OBSERVER_CELL"] =
-            std::to_string(p.observer.col) + "," + std::to_string(p.observer.row);
-        run.extra["OBSERVER_GROUND_M"] = fixed3(p.ground_m);
-        run.extra["OBSERVER_EYE_M"] = fixed3(p.ground_m + p.observer.height_m);
+        describeObserver(run, placed.front());
     } else {
         run.extra["SITES"] = st.sites;
         run.extra["SITE_COUNT"] = std::to_string(placed.size());
@@ -156,6 +165,116 @@ class ViewshedRasters {
   private:
     RunContext& ctx_;
     std::vector<std::unique_ptr<RasterWriter>> writers_;
+};
+
+std::string visibilityText(const std::string& observer) {
+    return "visibility from " + observer +
+           ": 1 visible, 0 hidden, 255 no data (outside reach or DEM no-data)";
+}
+
+/// --per-site: each site's own visibility raster in a folder, laid out as the single-observer
+/// -o raster of that site would be (its window, its metadata). Each is finished in its
+/// temporary file as soon as the engine hands over the site's grid (from any thread), so that
+/// no more than one site's grid per thread is held; handed to the run's outputs in the order of
+/// the sites at the end.
+class PerSiteRasters {
+  public:
+    /// Names the files (uniqueFileNames), checks them against the run's other outputs (exit 2)
+    /// and, in an existing folder, as any output (exit 4); then makes the folder.
+    PerSiteRasters(RunContext& ctx, const ViewshedRunOptions& st,
+                   const std::vector<PlacedSite>& placed)
+        : ctx_(ctx), placed_(placed) {
+        std::vector<std::string> names;
+        std::vector<int> lines;
+        for (const PlacedSite& p : placed) {
+            names.push_back(p.observer.name);
+            lines.push_back(p.line);
+        }
+        std::string folder = st.per_site;
+        if (folder.size() > 1 && folder.back() == '/')
+            folder.pop_back();
+        struct stat info {};
+        const bool folder_exists = stat(folder.c_str(), &info) == 0;
+        const NamedPath others[] = {{"-o", st.output},
+                                    {"--margin", st.margin},
+                                    {"--polygons", st.polygons},
+                                    {"--points", st.points},
+                                    {"--summary", st.common.summary}};
+        for (const std::string& name : uniqueFileNames(names, lines, ".tif")) {
+            const std::string path = folder + "/" + name;
+            for (const NamedPath& o : others) {
+                if (!o.path.empty() && sameFile(o.path, path)) {
+                    throw UsageError(o.option + " " + o.path + " is also the --per-site raster " +
+                                     path + "; give each output a path of its own");
+                }
+            }
+            if (folder_exists)
+                checkOutputPath(path, ctx.inputs, st.common.overwrite);
+            paths_.push_back(path);
+        }
+        temps_.resize(paths_.size());
+        ctx.outputs->makeFolder(folder);
+    }
+    ~PerSiteRasters() {
+        for (const std::string& t : temps_)
+            if (!t.empty())
+                std::remove(t.c_str());
+    }
+    PerSiteRasters(const PerSiteRasters&) = delete;
+    PerSiteRasters& operator=(const PerSiteRasters&) = delete;
+
+    /// Writes site `i`'s raster from its grid (cells of the window read) into its temporary.
+    void write(std::size_t i, const ViewshedGrids& g) {
+        const PlacedSite& p = placed_[i];
+        // The window a single-observer run of this site works on (cells of the whole DEM).
+        const CellWindow w = workWindow(ctx_, {p.observer});
+        std::vector<std::uint8_t> cells(static_cast<std::size_t>(w.width) * w.height,
+                                        kNoVisibility);
+        for (int r = 0; r < g.window.height; ++r) {
+            const int row = ctx_.window.row0 + g.window.row0 + r - w.row0;
+            if (row < 0 || row >= w.height)
+                continue;
+            for (int c = 0; c < g.window.width; ++c) {
+                const int col = ctx_.window.col0 + g.window.col0 + c - w.col0;
+                if (col >= 0 && col < w.width)
+                    cells[static_cast<std::size_t>(row) * w.width + col] = g.visible(c, r);
+            }
+        }
+        RunDescription run = ctx_.run;
+        run.extra.erase("SITE_COUNT");
+        run.extra.erase("SITE_HEIGHTS");
+        run.extra["SITE_LINE"] = std::to_string(p.line);
+        run.observer_height_m = p.observer.height_m;
+        describeObserver(run, p);
+        if (run.extra.count("WINDOW")) {
+            run.extra["WINDOW"] = std::to_string(w.col0) + "," + std::to_string(w.row0) + "," +
+                                  std::to_string(w.width) + "," + std::to_string(w.height);
+        }
+        RasterSpec spec = outputSpecFor(ctx_, w, paths_[i], PixelType::Byte, 1, kNoVisibility);
+        spec.metadata = rasterMetadata(run);
+        spec.band_descriptions = {visibilityText(p.observer.name)};
+        RasterWriter writer(spec);
+        if (reachExtent(ctx_))
+            writer.writeWindow(1, 0, 0, w.width, w.height, cells.data(), w.width);
+        else
+            writer.writeWindow(1, w.col0, w.row0, w.width, w.height, cells.data(), w.width);
+        temps_[i] = writer.finish();  // each site its own slot: no lock needed
+    }
+    /// Hands every finished raster to the run's outputs, in the order of the sites.
+    void handOver() {
+        for (std::size_t i = 0; i < temps_.size(); ++i) {
+            if (temps_[i].empty())
+                throw InternalError("the --per-site raster of a site was not written");
+            ctx_.outputs->adopt(temps_[i], paths_[i]);
+            temps_[i].clear();
+        }
+    }
+    const std::vector<std::string>& paths() const { return paths_; }
+
+  private:
+    RunContext& ctx_;
+    const std::vector<PlacedSite>& placed_;
+    std::vector<std::string> paths_, temps_;
 };
 
 const char* const kMarginText =
@@ -227,10 +346,8 @@ std::string runSingle(RunContext& ctx, const ViewshedRunOptions& st, const Place
     const ViewshedStats s = summarizeViewshed(grids.visible, grids.window, g, o, opt.reach_m);
     ctx.dem.z = Grid<float>();  // the elevations are no longer needed: free them first
     const float nan = std::numeric_limits<float>::quiet_NaN();
-    rasters.write(st.output, PixelType::Byte, kNoVisibility,
-                  "visibility from " + p.observer.name +
-                      ": 1 visible, 0 hidden, 255 no data (outside reach or DEM no-data)",
-                  "", grids.visible.data());
+    rasters.write(st.output, PixelType::Byte, kNoVisibility, visibilityText(p.observer.name), "",
+                  grids.visible.data());
     if (!st.polygons.empty())
         j["polygons"] = writePolygons(
             ctx, st.polygons, areaValues(grids.visible, [](std::uint8_t v) { return v == 1; }),
@@ -294,12 +411,18 @@ std::string sitesTable(const RunContext& ctx, const std::vector<PlacedSite>& pla
 /// Several sites: the engine, the count and margin rasters, the summary; returns the table.
 std::string runSites(RunContext& ctx, const ViewshedRunOptions& st,
                      const std::vector<PlacedSite>& placed, const ViewshedOptions& opt,
-                     ViewshedRasters& rasters, nlohmann::json& j) {
+                     ViewshedRasters& rasters, PerSiteRasters* per_site, nlohmann::json& j) {
     const GridGeometry& g = ctx.dem.geometry;  // of the window read
     std::vector<Observer> observers;
     for (const PlacedSite& p : placed)
         observers.push_back(inWindow(ctx, p.observer));
-    MultiViewshedResult res = multiViewshed(ctx.dem.z, g, ctx.earth, observers, opt, *ctx.progress);
+    SiteGridsReceiver each_site;
+    if (per_site)
+        each_site = [per_site](std::size_t i, const ViewshedGrids& grids) {
+            per_site->write(i, grids);
+        };
+    MultiViewshedResult res =
+        multiViewshed(ctx.dem.z, g, ctx.earth, observers, opt, each_site, *ctx.progress);
     const CoverageStats cov = summarizeCoverage(res.count, g, static_cast<int>(placed.size()));
     ctx.dem.z = Grid<float>();
     rasters.write(st.output, PixelType::UInt16, kNoCount,
@@ -324,7 +447,14 @@ std::string runSites(RunContext& ctx, const ViewshedRunOptions& st,
                       std::string("largest over the sites of the ") + kMarginText, "m",
                       res.best_margin.data());
     }
-    const std::string table = sitesTable(ctx, placed, res, j);
+    std::string table = sitesTable(ctx, placed, res, j);
+    if (per_site) {
+        for (std::size_t i = 0; i < placed.size(); ++i)
+            j["observers"][i]["raster"] = per_site->paths()[i];
+        table += "Each site's own raster: " + std::to_string(placed.size()) + " files in " +
+                 st.per_site + "\n";
+        per_site->handOver();
+    }
     const double any_fraction =
         cov.evaluated_area_m2 > 0 ? cov.area_seen_by_any_m2 / cov.evaluated_area_m2 : 0.0;
     j["coverage"] = {{"cells_seen_by_any", cov.cells_seen_by_any},
@@ -348,6 +478,11 @@ bool checkObserverOptions(const ViewshedRunOptions& st, MapPoint* given) {
             "--angle needs a single observer (--observer); an elevation angle has no meaning "
             "over several sites");
     }
+    if (single && !st.per_site.empty()) {
+        throw UsageError(
+            "--per-site writes one raster per site of --sites; with one --observer, -o is its "
+            "raster");
+    }
     if (single)
         *given = parsePoint(st.observer, "--observer");
     return single;
@@ -364,6 +499,8 @@ nlohmann::json outputsJson(const ViewshedRunOptions& st, bool single) {
         outputs["polygons"] = st.polygons;
     if (!st.points.empty())
         outputs["points"] = st.points;
+    if (!st.per_site.empty())
+        outputs["per_site"] = st.per_site;
     return outputs;
 }
 
@@ -434,6 +571,13 @@ OptionTable ViewshedRun::declare() {
                            "or .geojson",
                            "Output")
                     .fileType());
+    t.push_back(OptionDecl("--per-site", &st.per_site,
+                           "with --sites, a folder for each site's own visibility raster (as -o "
+                           "of --observer gives), named after the site: letters, digits, - and _ "
+                           "kept, other characters _, clashes _2, _3 ...; made if missing; an "
+                           "existing folder must be empty unless --overwrite",
+                           "Output")
+                    .typeName("DIR"));
     return t;
 }
 
@@ -445,7 +589,8 @@ RunReport ViewshedRun::run(const RunEnv& env) {
                                       {"--margin", st.margin, OutputKind::Raster},
                                       {"--angle", st.angle, OutputKind::Raster},
                                       {"--polygons", st.polygons, OutputKind::Vector},
-                                      {"--points", st.points, OutputKind::Vector}};
+                                      {"--points", st.points, OutputKind::Vector},
+                                      {"--per-site", st.per_site, OutputKind::Folder}};
     std::vector<std::string> extra_inputs;
     if (!single)
         extra_inputs.push_back(st.sites);
@@ -463,8 +608,11 @@ RunReport ViewshedRun::run(const RunEnv& env) {
     nlohmann::json j = summaryBase(ctx.run);
     j["outputs"] = outputsJson(st, single);
     ViewshedRasters rasters(ctx);
+    std::unique_ptr<PerSiteRasters> per_site;
+    if (!st.per_site.empty())
+        per_site = std::make_unique<PerSiteRasters>(ctx, st, placed);
     std::string table = single ? runSingle(ctx, st, placed.front(), opt, rasters, j)
-                               : runSites(ctx, st, placed, opt, rasters, j);
+                               : runSites(ctx, st, placed, opt, rasters, per_site.get(), j);
     rasters.handOver();
     if (!table.empty() && table.back() != '\n')
         table += "\n";

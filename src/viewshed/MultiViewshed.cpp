@@ -48,6 +48,13 @@ void merge(MultiViewshedResult& out, const ViewshedGrids& g) {
 MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& geometry,
                                   const EarthModel& earth, const std::vector<Observer>& observers,
                                   const ViewshedOptions& options, Progress& progress) {
+    return multiViewshed(dem, geometry, earth, observers, options, SiteGridsReceiver(), progress);
+}
+
+MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& geometry,
+                                  const EarthModel& earth, const std::vector<Observer>& observers,
+                                  const ViewshedOptions& options,
+                                  const SiteGridsReceiver& each_site, Progress& progress) {
     if (observers.empty())
         throw UsageError("no sites were given");
     if (observers.size() >= kNoCount) {
@@ -89,6 +96,8 @@ MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& ge
                 summarizeViewshed(g.visible, g.window, geometry, observers[i], options.reach_m);
 #pragma omp critical(lookfar_multiviewshed_merge)
             merge(out, g);
+            if (each_site)
+                each_site(static_cast<std::size_t>(i), g);
         },
         loop);
     progress.end();

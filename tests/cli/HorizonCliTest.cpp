@@ -51,9 +51,9 @@ TEST(HorizonCliTest, FlatSeaHorizonDistanceMatchesBowditch) {
     const auto rows = readCsv(csv);
     ASSERT_EQ(rows.size(), 9u);  // header + 8 directions
     EXPECT_EQ(rows[0], (std::vector<std::string>{"azimuth_deg", "angle_deg", "distance_m", "x", "y",
-                                                 "elevation_m"}));
+                                                 "elevation_m", "edge_distance_m"}));
     for (std::size_t i = 1; i < rows.size(); ++i) {
-        ASSERT_EQ(rows[i].size(), 6u);
+        ASSERT_EQ(rows[i].size(), 7u);
         const double d = std::stod(rows[i][2]);
         EXPECT_NEAR(d, bowditch_m, 0.01 * bowditch_m) << rows[i][0];
         // The horizon point lies that far from the spot, in the row's azimuth, on the sea.
@@ -61,7 +61,15 @@ TEST(HorizonCliTest, FlatSeaHorizonDistanceMatchesBowditch) {
         EXPECT_NEAR(std::stod(rows[i][3]), 425025 + d * std::sin(az), 1.0) << rows[i][0];
         EXPECT_NEAR(std::stod(rows[i][4]), 5624975 + d * std::cos(az), 1.0) << rows[i][0];
         EXPECT_EQ(std::stod(rows[i][5]), 0.0);
+        // Without --reach the DEM's edge is within reach everywhere (issue 15 item 7): the spot
+        // is 500 cells of 50 m from each side's line of centres, so the ray meets it after
+        // 25 km / max(|sin az|, |cos az|) (plane geometry).
+        EXPECT_NEAR(std::stod(rows[i][6]),
+                    25000.0 / std::fmax(std::fabs(std::sin(az)), std::fabs(std::cos(az))), 0.001)
+            << rows[i][0];
     }
+    EXPECT_EQ(j["horizon"]["edge"]["directions_cut"], 8);
+    EXPECT_NEAR(j["horizon"]["edge"]["nearest_m"].get<double>(), 25000.0, 1e-6);
     EXPECT_NEAR(j["horizon"]["sea_horizon_distance_m"].get<double>(), bowditch_m,
                 0.01 * bowditch_m);
 }
@@ -234,6 +242,80 @@ TEST(HorizonCliTest, PanoramaShowsTerrainAndReferenceLines) {
     EXPECT_NE(s.find("azimuth, degrees clockwise from grid north"), std::string::npos);
     EXPECT_NE(s.find("horizon angle, degrees"), std::string::npos);
     EXPECT_NE(s.find(">NE<"), std::string::npos);
+}
+
+// Issue 15 item 7: where the DEM ends within the reach. Quarrel Knap stands on cell (277, 224) of
+// the 500 × 400 demo DEM of 25 m cells: 4375 m from the line of the last row's centres to the
+// south, farther from the other sides. With a 5 km reach the edge cuts the horizon round south
+// only: the CSV gives the distance there (plane geometry: 4375 m / |cos az| while the ray meets
+// the south side first) and nothing elsewhere, and the panorama shades those directions with a
+// legend. With a 1 km reach nothing is cut and nothing is shaded.
+TEST(HorizonCliTest, EdgeOfTheDemWithinTheReachIsGivenAndShaded) {
+    ScratchDir dir;
+    const std::string csv = dir.file("h.csv"), svg = dir.file("h.svg");
+    nlohmann::json j =
+        runJson({"horizon", testRaster("demo_coast.tif"), "--at", "426937.5,5594387.5", "--reach",
+                 "5000", "--step", "10", "--csv", csv, "--plot", svg});
+    const auto rows = readCsv(csv);
+    ASSERT_EQ(rows.size(), 37u);
+    ASSERT_EQ(rows[0].back(), "edge_distance_m");
+    // Distances to the four sides' lines of centres, metres (x east, y south of the spot).
+    const double west = 277 * 25.0, east = (499 - 277) * 25.0, north = 224 * 25.0,
+                 south = (399 - 224) * 25.0;
+    int cut = 0;
+    for (std::size_t i = 1; i < rows.size(); ++i) {
+        ASSERT_EQ(rows[i].size(), 7u);
+        const double az = std::stod(rows[i][0]) * kPi / 180.0;
+        const double e = std::sin(az), n = std::cos(az);
+        double t = 1e300;
+        if (e > 1e-12)
+            t = std::fmin(t, east / e);
+        if (e < -1e-12)
+            t = std::fmin(t, west / -e);
+        if (n > 1e-12)
+            t = std::fmin(t, north / n);
+        if (n < -1e-12)
+            t = std::fmin(t, south / -n);
+        if (t <= 5000) {
+            ++cut;
+            EXPECT_NEAR(std::stod(rows[i][6]), t, 0.001) << rows[i][0];
+        } else {
+            EXPECT_EQ(rows[i][6], "") << rows[i][0];
+        }
+    }
+    EXPECT_EQ(cut, 5);  // 160° to 200°: 4375 / cos 20° = 4656 m, cos 30° gives 5052 m
+    EXPECT_EQ(j["horizon"]["edge"]["directions_cut"], cut);
+    EXPECT_NEAR(j["horizon"]["edge"]["nearest_m"].get<double>(), 4375.0, 1e-6);
+    EXPECT_EQ(j["horizon"]["edge"]["nearest_azimuth_deg"], 180.0);
+    const std::string s = readFile(svg);
+    EXPECT_NE(s.find("shaded: the DEM ends within the reach"), std::string::npos);
+    // One shaded span, 155° to 205° (each direction stands for ±5°), and its legend box.
+    std::size_t spans = 0;
+    for (std::size_t at = s.find("fill=\"#e6def0\""); at != std::string::npos;
+         at = s.find("fill=\"#e6def0\"", at + 1))
+        ++spans;
+    EXPECT_EQ(spans, 2u);
+
+    j = runJson({"horizon", testRaster("demo_coast.tif"), "--at", "426937.5,5594387.5", "--reach",
+                 "1000", "--step", "10", "--plot", svg, "--overwrite"});
+    EXPECT_EQ(j["horizon"]["edge"]["directions_cut"], 0);
+    EXPECT_TRUE(j["horizon"]["edge"]["nearest_m"].is_null());
+    EXPECT_EQ(readFile(svg).find("shaded:"), std::string::npos);
+}
+
+// The grid summary counts the cells less than the reach from the DEM's edge along their row or
+// column (docs/horizon.md): on the demo DEM, counted here cell by cell.
+TEST(HorizonCliTest, GridSummaryCountsCellsWhoseHorizonTheEdgeCanCut) {
+    ScratchDir dir;
+    nlohmann::json j = runJson({"horizon", testRaster("demo_coast.tif"), "--svf",
+                                dir.file("svf.tif"), "--directions", "4", "--reach", "3000"});
+    std::int64_t want = 0;
+    for (int r = 0; r < 400; ++r)
+        for (int c = 0; c < 500; ++c)
+            want += std::fmin(std::fmin(c, 499 - c), std::fmin(r, 399 - r)) * 25.0 <= 3000;
+    EXPECT_EQ(j["edge"]["cells_cut"].get<std::int64_t>(), want);
+    EXPECT_EQ(j["edge"]["cells"].get<std::int64_t>(), 200000);
+    EXPECT_DOUBLE_EQ(j["edge"]["fraction_cut"].get<double>(), want / 200000.0);
 }
 
 // A geographic DEM and --crs: the spot and the CSV's horizon points are in the --crs coordinates.

@@ -245,17 +245,10 @@ TEST_P(InterruptCliTest, InterruptLeavesNoFileBehind) {
         GDALClose(ds);
     }
     const std::string err = capture.file("err");
-    pid_t pid = fork();
-    if (pid == 0) {
-        FILE* f = std::freopen(err.c_str(), "w", stderr);
-        (void)f;
-        std::freopen("/dev/null", "w", stdout);
-        execl(LOOKFAR_CLI_PATH, "lookfar", "viewshed", dem.c_str(), "--observer", "406000,5594000",
-              "--method", "reference", "-o", (out.path() + "/v.tif").c_str(), "--margin",
-              (out.path() + "/m.tif").c_str(), "--summary", (out.path() + "/s.json").c_str(),
-              static_cast<char*>(nullptr));
-        _exit(127);
-    }
+    const pid_t pid = startLookfar({"viewshed", dem, "--observer", "406000,5594000", "--method",
+                                    "reference", "-o", out.path() + "/v.tif", "--margin",
+                                    out.path() + "/m.tif", "--summary", out.path() + "/s.json"},
+                                   err);
     // Wait until the engine has started (its progress line), then press Ctrl-C.
     const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(20);
     while (readFile(err).find("reference viewshed") == std::string::npos &&

@@ -256,7 +256,11 @@ TEST(WindowedEngineTest, HorizonOfASpotOnTheWindowIsTheWholeDems) {
             EXPECT_TRUE(sameBits(x.distance_m, y.distance_m)) << c.raster << " direction " << i;
             EXPECT_TRUE(sameBits(x.col, y.col + s.window.col0)) << c.raster << " direction " << i;
             EXPECT_TRUE(sameBits(x.row, y.row + s.window.row0)) << c.raster << " direction " << i;
+            // The DEM's edge is the whole DEM's, whatever window was read (issue 15 item 7).
+            EXPECT_TRUE(sameBits(a.directions[i].edge_distance_m, b.directions[i].edge_distance_m))
+                << c.raster << " direction " << i;
         }
+        EXPECT_EQ(a.directions_cut_by_edge, b.directions_cut_by_edge) << c.raster;
         EXPECT_TRUE(sameBits(a.sky_view_factor, b.sky_view_factor));
     }
 }

@@ -3,7 +3,8 @@ cells and CSV bytes, and the same summary."""
 import numpy as np
 import pytest
 
-from conftest import assert_same_cells, cli_json, cli_sentence, cli_table, comparable, raster
+from conftest import (assert_same_cells, band_bytes, cli_json, cli_sentence, cli_table, comparable,
+                      raster)
 
 DEMO = raster("demo_coast.tif")
 SITES = raster("demo_sites.csv")
@@ -100,6 +101,18 @@ def test_viewshed_polygons_are_written_as_by_the_cli(lookfar, tmp_path):
     r = lookfar.viewshed(DEMO, observer=QUARREL, reach=3000, polygons=tmp_path / "py.geojson")
     assert comparable(r.summary)["polygons"]["features"] == cli["polygons"]["features"]
     assert (tmp_path / "py.geojson").read_bytes() == (tmp_path / "cli.geojson").read_bytes()
+
+
+def test_viewshed_per_site_rasters_are_the_clis(lookfar, tmp_path):
+    cli_json("viewshed", DEMO, "--sites", SITES, "--reach", 3000, "-o", tmp_path / "c.tif",
+             "--per-site", tmp_path / "cli")
+    r = lookfar.viewshed(DEMO, sites=SITES, reach=3000, per_site=tmp_path / "py")
+    names = sorted(p.name for p in (tmp_path / "cli").iterdir())
+    assert len(names) == 7 and "Quarrel_Knap.tif" in names
+    assert sorted(p.name for p in (tmp_path / "py").iterdir()) == names
+    for name in names:
+        assert_same_cells(band_bytes(tmp_path / "py" / name), tmp_path / "cli" / name)
+    assert [o["raster"].endswith(".tif") for o in r.summary["observers"]] == [True] * 7
 
 
 def test_viewshed_points_are_written_as_by_the_cli(lookfar, tmp_path):

@@ -80,6 +80,9 @@ def test_horizon_at_equals_cli(lookfar, tmp_path):
     assert np.array_equal(r.azimuth, expected["azimuth_deg"])
     assert np.array_equal(r.angle, expected["angle_deg"], equal_nan=True)
     assert np.array_equal(r.distance, expected["distance_m"], equal_nan=True)
+    # The DEM's edge within the 8 km reach in some directions, beyond it in others.
+    assert np.array_equal(r.edge_distance, expected["edge_distance_m"], equal_nan=True)
+    assert np.isnan(r.edge_distance).any() and np.isfinite(r.edge_distance).any()
     assert len(r.azimuth) == 180 and r.azimuth[1] == 2.0
     assert r.summary["horizon"]["directions"] == 180
 

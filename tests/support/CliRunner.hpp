@@ -107,6 +107,27 @@ inline CliResult runLookfar(const std::vector<std::string>& args) {
     return r;
 }
 
+/// Starts lookfar with `args` in a child process, its stderr into the file `err_path` and its
+/// stdout to /dev/null, and returns at once with the child's pid (for tests that signal it).
+inline pid_t startLookfar(const std::vector<std::string>& args, const std::string& err_path) {
+    std::vector<std::string> argv_text = {"lookfar"};
+    argv_text.insert(argv_text.end(), args.begin(), args.end());
+    std::vector<char*> argv;
+    for (auto& a : argv_text)
+        argv.push_back(const_cast<char*>(a.c_str()));
+    argv.push_back(nullptr);
+    const pid_t pid = fork();
+    if (pid == 0) {
+        FILE* f = std::freopen(err_path.c_str(), "w", stderr);
+        (void)f;
+        f = std::freopen("/dev/null", "w", stdout);
+        (void)f;
+        execv(LOOKFAR_CLI_PATH, argv.data());
+        _exit(127);
+    }
+    return pid;
+}
+
 /// First line of a text.
 inline std::string firstLine(const std::string& s) {
     return s.substr(0, s.find('\n'));

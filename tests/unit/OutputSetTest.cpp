@@ -108,3 +108,33 @@ TEST(OutputSetTest, RastersWaitForTheSet) {
     EXPECT_TRUE(fileExists(dir.file("r.tif")));
     EXPECT_EQ(dir.entries().size(), 1u);
 }
+
+// --per-site (issue 15 item 5): a folder the run made goes again when the run fails, one that was
+// there stays, and a committed set keeps the folder it made.
+TEST(OutputSetTest, AFolderMadeByAFailedRunIsRemovedWithItsTemporaries) {
+    ScratchDir dir;
+    {
+        OutputSet set;
+        set.makeFolder(dir.file("per"));
+        set.addText(dir.file("per/a.txt"), "a");
+        EXPECT_TRUE(fileExists(dir.file("per")));
+    }
+    EXPECT_TRUE(dir.entries().empty());
+    ::mkdir(dir.file("kept").c_str(), 0777);
+    {
+        OutputSet set;
+        set.makeFolder(dir.file("kept"));  // already there: not made, not removed
+        set.addText(dir.file("kept/a.txt"), "a");
+    }
+    EXPECT_EQ(dir.entries(), std::vector<std::string>({"kept"}));
+    {
+        OutputSet set;
+        set.makeFolder(dir.file("made"));
+        set.addText(dir.file("made/a.txt"), "a");
+        set.commit();
+    }
+    EXPECT_EQ(readFile(dir.file("made/a.txt")), "a");
+    // A folder that cannot be made (its parent is missing) is an output error.
+    OutputSet set;
+    EXPECT_THROW(set.makeFolder(dir.file("no/such")), lookfar::OutputError);
+}

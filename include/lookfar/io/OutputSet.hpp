@@ -67,6 +67,9 @@ class OutputSet {
     TextStream& openText(const std::string& path);
     /// Takes charge of a finished temporary file `temp` that becomes `path` on commit().
     void adopt(const std::string& temp, const std::string& path);
+    /// Makes the folder `path` unless it exists (throws OutputError). A folder made here is
+    /// removed again, once its temporaries are, when the set is destroyed before commit().
+    void makeFolder(const std::string& path);
 
     /// Renames every finished output into place. Throws Interrupted when the run was
     /// interrupted before (nothing renamed), OutputError when a rename fails (every earlier file
@@ -83,6 +86,7 @@ class OutputSet {
     };
     std::vector<Entry> entries_;
     std::vector<std::unique_ptr<TextStream>> streams_;
+    std::vector<std::string> made_folders_;
     bool committed_ = false;
 };
 

@@ -1,7 +1,8 @@
 #pragma once
 // The panorama of one spot's horizon (horizon --at --plot): azimuth across, horizon angle up,
 // the terrain filled below its horizon, the eye's horizontal, the sea-horizon dip and the
-// highest point marked.
+// highest point marked; the directions where the DEM ends within the reach shaded, with a legend
+// row below the plot.
 #include <string>
 
 #include "lookfar/horizon/HorizonProfile.hpp"

@@ -35,8 +35,16 @@ class SvgPlot {
     /// text-anchor: "start", "middle" or "end". Drawn with a white halo to stay readable.
     void text(double x, double y, const std::string& label, const std::string& colour,
               const std::string& anchor = "start", double dx_px = 0, double dy_px = 0);
-    /// A legend entry (drawn top-right in order of calls).
+    /// A shaded span across the whole height of the plot, from x0 to x1 (data units).
+    void xSpan(double x0, double x1, const SvgStyle& style);
+    /// A legend entry (drawn top-right in order of calls), its sample a short line.
     void legend(const std::string& label, const SvgStyle& style);
+    /// A legend entry whose sample is a filled box (for shaded areas).
+    void legendBox(const std::string& label, const SvgStyle& style);
+    /// Puts the legend in a row of its own below the x axis's label, entries side by side,
+    /// rather than over the top right of the plot: the picture grows by that row, the plot
+    /// area keeps its size. Call before axes() and before drawing anything.
+    void legendRowBelow();
     std::string render() const;
 
     double px(double x) const;
@@ -47,7 +55,13 @@ class SvgPlot {
     double left_ = 70, right_ = 20, top_ = 40, bottom_ = 50;
     std::string body_;
     std::string title_;
-    std::vector<std::pair<std::string, SvgStyle>> legend_;
+    struct LegendEntry {
+        std::string label;
+        SvgStyle style;
+        bool box = false;
+    };
+    std::vector<LegendEntry> legend_;
+    double legend_row_ = 0;  ///< height of the legend's row below the plot, pixels (0: none)
 };
 
 /// A "nice" tick step giving roughly `target` ticks over `span`.

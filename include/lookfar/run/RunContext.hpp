@@ -67,6 +67,7 @@ enum class OutputKind {
     Any,     ///< text, CSV, JSON, SVG: any name
     Raster,  ///< a GeoTIFF: .tif or .tiff
     Vector,  ///< a GeoPackage or GeoJSON, chosen by the extension
+    Folder,  ///< a folder of outputs (checkOutputFolder): made if missing, empty unless --overwrite
 };
 
 /// An output path and the option that gave it (for messages).
@@ -180,6 +181,10 @@ double latitudeOf(const RunContext& ctx, const MapPoint& p_dem);
 /// Raster spec for an output of the DEM's size, geotransform and CRS, with metadata.
 RasterSpec outputSpec(const RunContext& ctx, const std::string& path, PixelType type, int bands,
                       double nodata);
+/// outputSpec for a raster of the work on `window` (cells of the whole DEM) rather than the
+/// window read: the whole DEM's grid with --extent dem, else `window` on the DEM's grid lines.
+RasterSpec outputSpecFor(const RunContext& ctx, const CellWindow& window, const std::string& path,
+                         PixelType type, int bands, double nodata);
 /// True when the output rasters cover the window read only (--extent reach).
 bool reachExtent(const RunContext& ctx);
 /// The summary's "extent": mode, window of DEM cells read, size of the output rasters.

@@ -15,6 +15,7 @@ struct ViewshedRunOptions {
     std::string angle;     ///< elevation-angle raster (one observer), empty = not written
     std::string polygons;  ///< visible areas as polygons (.gpkg or .geojson), empty = none
     std::string points;    ///< the observers as points with their figures, empty = none
+    std::string per_site;  ///< folder of each site's own visibility raster (--sites), empty = none
 };
 
 class ViewshedRun final : public RunCommand {

@@ -2,7 +2,9 @@
 // Viewsheds of many observers at once: how many of them see each cell, the best margin over
 // them, and each one's statistics. Sites run in parallel, each on the window within its reach;
 // no grid is kept per site.
+#include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <vector>
 
 #include "lookfar/core/Grid.hpp"
@@ -31,6 +33,22 @@ struct MultiViewshedResult {
 MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& geometry,
                                   const EarthModel& earth, const std::vector<Observer>& observers,
                                   const ViewshedOptions& options,
+                                  Progress& progress = silentProgress());
+
+/// Receives each site's own grids as soon as its engine is done (`site` indexes `observers`):
+/// the visibility over the window within the site's reach (ViewshedGrids::window, cells of
+/// `dem`), and its margin when options.want_margin. Called once per site, in no fixed order and,
+/// when the sites run in parallel, from several threads at once: it must be thread-safe. Its
+/// first exception stops the run and is rethrown. The grids are freed after the call, so no
+/// more than one site's grids per thread are held at once.
+using SiteGridsReceiver = std::function<void(std::size_t site, const ViewshedGrids& grids)>;
+
+/// multiViewshed, handing every site's grids to `each_site` as well (lookfar viewshed
+/// --per-site).
+MultiViewshedResult multiViewshed(const Grid<float>& dem, const GridGeometry& geometry,
+                                  const EarthModel& earth, const std::vector<Observer>& observers,
+                                  const ViewshedOptions& options,
+                                  const SiteGridsReceiver& each_site,
                                   Progress& progress = silentProgress());
 
 }  // namespace lookfar
