@@ -31,11 +31,21 @@ struct PlacedPath {
     MapPoint a_ll, b_ll;  ///< lon/lat of the ends
 };
 
-PlacedPath placePath(const RunContext& ctx, const MapPoint& a, const MapPoint& b) {
-    const GridGeometry& g = ctx.grid;
+/// What places the samples of a path on the DEM: its grid, its lon/lat (a PROJ transform, made
+/// once per run: making one costs milliseconds) and the geodesic on its ellipsoid.
+struct PathPlacer {
+    const GridGeometry& g;
+    LonLatOf ll;
+    Geodesic geo;
+    explicit PathPlacer(const RunContext& ctx)
+        : g(ctx.grid), ll(ctx.dem.crs.wkt), geo(ctx.dem.crs.ellipsoid) {}
+};
+
+PlacedPath placePath(const PathPlacer& placer, const MapPoint& a, const MapPoint& b) {
+    const GridGeometry& g = placer.g;
+    const LonLatOf& ll = placer.ll;
+    const Geodesic& geo = placer.geo;
     PlacedPath p;
-    const LonLatOf ll(ctx.dem.crs.wkt);
-    const Geodesic geo(ctx.dem.crs.ellipsoid);
     p.a_ll = ll.apply(a);
     p.b_ll = ll.apply(b);
     p.line = geo.inverse(p.a_ll.x, p.a_ll.y, p.b_ll.x, p.b_ll.y);
@@ -335,7 +345,7 @@ PlacedPath openPath(RunContext& ctx, const LinkValues& v, const LinkEnds& e, Map
     const Observer to_cell = placeObserver(ctx, "--to", v.to_in.x, v.to_in.y, v.to_h, "to");
     *a = toDemCrs(ctx, v.from_in);
     *b = toDemCrs(ctx, v.to_in);
-    PlacedPath path = placePath(ctx, *a, *b);
+    PlacedPath path = placePath(PathPlacer(ctx), *a, *b);
     if (!(path.length_m > 0))
         throw UsageError("--from and --to are the same point; a link needs two different ends");
     readDemWindow(ctx, pathWindow(ctx.grid, path.input));  // only the cells along the path
@@ -632,9 +642,10 @@ RunReport runPairs(const RunEnv& env, const LinkRunOptions& s, const LinkValues&
         placeObservers(ctx, what, given, heights, names, &dem_points);
     // The cells the paths sample: one window holding every path's, read once. The samples are
     // placed again link by link below rather than all kept.
+    const PathPlacer placer(ctx);
     CellWindow window{};
     for (std::size_t k = 0; k < pairs.size(); ++k) {
-        const PlacedPath path = placePath(ctx, dem_points[2 * k], dem_points[2 * k + 1]);
+        const PlacedPath path = placePath(placer, dem_points[2 * k], dem_points[2 * k + 1]);
         if (!(path.length_m > 0)) {
             throw InputError(s.pairs + ", line " + std::to_string(pairs[k].line) +
                              ": from and to are the same point; a link needs two different ends");
@@ -663,7 +674,7 @@ RunReport runPairs(const RunEnv& env, const LinkRunOptions& s, const LinkValues&
         throwIfCancelled(*ctx.progress);
         const LinkPair& p = pairs[k];
         const MapPoint a = dem_points[2 * k], b = dem_points[2 * k + 1];
-        PlacedPath path = placePath(ctx, a, b);
+        PlacedPath path = placePath(placer, a, b);
         preparePath(ctx, ends[k], path);
         const LinkFigures f = measureLink(ctx, path, a, b, ends[k]);
         (f.r.line_of_sight ? clear : blocked) += 1;
