@@ -738,7 +738,7 @@ CommandHelp LinkRun::help() const {
             "height above the terrain; F1 = sqrt(lambda d1 d2 / d). With a frequency from 30 to "
             "50000 MHz the basic transmission loss is ITU-R P.525 free space plus the "
             "delta-Bullington diffraction of ITU-R P.526-15 4.5 over land ground. --pairs FILE "
-            "checks many links in one run, each exactly as --from/--to would.\n\nCaution: the "
+            "checks many links in one run, each exactly as --from/--to would.\nCaution: the "
             "losses are median predictions for planning, not licensed coverage; the DEM has no "
             "buildings or trees; the local regulator's methods and licensed engineering "
             "prevail."};
@@ -749,8 +749,8 @@ OptionTable LinkRun::declare() {
     OptionTable t = commonOptions(s.common, kGeometryOptions);
     removeOption(t, "--reach");
     t.push_back(OptionDecl("--from", &s.from,
-                           "start of the path X,Y (in --crs; the exact point); with --to, or "
-                           "--pairs",
+                           "start of the path X,Y (in --crs; the exact point); one link needs "
+                           "--from and --to, several --pairs",
                            "Path"));
     t.push_back(
         OptionDecl("--to", &s.to, "end of the path X,Y (in --crs; the exact point)", "Path"));
@@ -789,7 +789,8 @@ OptionTable LinkRun::declare() {
                            "Output")
                     .fileType());
     t.push_back(
-        OptionDecl("--plot", &s.plot, "write the profile as an SVG plot", "Output").fileType());
+        OptionDecl("--plot", &s.plot, "write the profile as an SVG plot (one link)", "Output")
+            .fileType());
     return t;
 }
 
