@@ -428,7 +428,7 @@ the lowest and highest horizon, the open sectors, the sky-view factor and the se
         from_y, from_height, to_name, to_x, to_y, to_height, optional frequency_mhz).
     csv: a path to write the profile CSV (with pairs: one row per link) too; plot: a path for
         the SVG plot (one link).
-    refraction: default 0.13.)") +
+    refraction: default 0.13; one link may take a list "0.25,-0.33" for the plot.)") +
          kGeometryDoc + R"(
 
 Returns a Result: .profile (dict of columns: distance_m, x, y, terrain_m, earth_bulge_m,

@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <iterator>
 #include <limits>
 #include <optional>
 #include <string>
@@ -124,11 +125,25 @@ std::string profileCsv(const PathProfileResult& r, const PlacedPath& path, bool 
     return out;
 }
 
+/// The same path under another refraction coefficient, drawn over the first one's terrain.
+struct RefractionVariant {
+    double k = 0;
+    PathProfileResult r;
+};
+
+/// Colours of the other refraction coefficients' sightlines (at most three).
+const char* const kVariantColours[] = {"#6a3d9a", "#d9730d", "#1b7837"};
+
 /// The profile drawn on the curved Earth: the datum surface is the arc b(d) above the chord
-/// between its two ends, terrain and sightline are raised by b(d).
-std::string profileSvg(const PathProfileResult& r, bool fresnel, double frequency_mhz) {
+/// between its two ends, terrain and sightline are raised by b(d). Each variant's sightline is
+/// drawn at its own height above the datum plus the first profile's b(d), so its clearance over
+/// the terrain drawn is its own (it bends, as a ray would under that k), with its F1 either side.
+std::string profileSvg(const PathProfileResult& r, bool fresnel, double frequency_mhz, double k = 0,
+                       const std::vector<RefractionVariant>& variants = {}) {
     const auto& pts = r.points;
     std::vector<double> xs, base, terrain, sight, f_hi, f_lo, f_60;
+    std::vector<std::vector<double>> v_sight(variants.size()), v_hi(variants.size()),
+        v_lo(variants.size());
     double y_min = 0, y_max = 0;
     bool first = true;
     auto extend = [&](double y) {
@@ -157,11 +172,26 @@ std::string profileSvg(const PathProfileResult& r, bool fresnel, double frequenc
             extend(f_lo.back());
         }
     }
+    for (std::size_t k_i = 0; k_i < variants.size(); ++k_i) {
+        for (std::size_t i = 0; i < pts.size(); ++i) {
+            const ProfilePoint& q = variants[k_i].r.points[i];
+            v_sight[k_i].push_back(q.sightline_m + pts[i].earth_bulge_m);
+            extend(v_sight[k_i].back());
+            if (fresnel) {
+                v_hi[k_i].push_back(v_sight[k_i].back() + q.fresnel_radius_m);
+                v_lo[k_i].push_back(v_sight[k_i].back() - q.fresnel_radius_m);
+                extend(v_hi[k_i].back());
+                extend(v_lo[k_i].back());
+            }
+        }
+    }
     extend(0.0);
-    // 960 × 520 px with 430 px of plot height: the top 110 px are kept free for the legend.
+    // 960 × 520 px with 430 px of plot height: the top 110 px are kept free for the legend, and
+    // 16 px more for each variant's entry.
     const double span = std::fmax(y_max - y_min, 1.0);
     const double pad = 0.05 * span;
-    const double headroom = (span + pad) * 110.0 / 320.0;
+    const double legend_px = 110.0 + 16.0 * static_cast<double>(variants.size());
+    const double headroom = (span + pad) * legend_px / (430.0 - legend_px);
     const double x1 = r.path_length_m / 1000.0;
     SvgPlot plot(960, 520, 0.0, x1, y_min - pad, y_max + headroom);
     char title[200];
@@ -206,16 +236,30 @@ std::string profileSvg(const PathProfileResult& r, bool fresnel, double frequenc
     // Masts at both ends.
     plot.polyline({0.0, 0.0}, {terrain.front(), sight.front()}, {"#333333", "none", 2.5, "", 1.0});
     plot.polyline({x1, x1}, {terrain.back(), sight.back()}, {"#333333", "none", 2.5, "", 1.0});
+    for (std::size_t k_i = 0; k_i < variants.size(); ++k_i) {
+        const char* colour = kVariantColours[k_i % std::size(kVariantColours)];
+        if (fresnel) {
+            plot.polyline(xs, v_hi[k_i], {colour, "none", 0.8, "2 3", 1.0});
+            plot.polyline(xs, v_lo[k_i], {colour, "none", 0.8, "2 3", 1.0});
+        }
+        plot.polyline(xs, v_sight[k_i], {colour, "none", 1.4, "", 1.0});
+    }
     plot.polyline(xs, sight, {"#b0432b", "none", 1.8, "", 1.0});
 
     plot.legend("terrain", {"#6b5a2e", "#cdbb8b", 6, "", 1.0});
     plot.legend("datum surface (curved)", {"#3f6e9a", "none", 1.5, "", 1.0});
-    plot.legend("sightline", {"#b0432b", "none", 1.8, "", 1.0});
+    plot.legend(variants.empty() ? "sightline" : "sightline, k = " + printfNumber("%g", k),
+                {"#b0432b", "none", 1.8, "", 1.0});
     if (fresnel) {
         char label[64];
         std::snprintf(label, sizeof label, "first Fresnel zone, %.0f MHz", frequency_mhz);
         plot.legend(label, {"#3d8ea3", "none", 1.0, "", 1.0});
         plot.legend("60 % of the first zone", {"#3d8ea3", "none", 1.0, "5 3", 1.0});
+    }
+    for (std::size_t k_i = 0; k_i < variants.size(); ++k_i) {
+        plot.legend("sightline" + std::string(fresnel ? " and F1" : "") +
+                        ", k = " + printfNumber("%g", variants[k_i].k),
+                    {kVariantColours[k_i % std::size(kVariantColours)], "none", 1.4, "", 1.0});
     }
 
     // The worst point, and the first block.
@@ -261,7 +305,44 @@ struct LinkValues {
     double frequency_mhz = kNaN;      ///< --frequency-mhz, NaN = none
     double required_fraction = kNaN;  ///< --required-clearance, NaN = not asked
     MapPoint from_in, to_in;          ///< one link: as given, in --crs
+    std::vector<double> refractions;  ///< --refraction: the link's k, then the plot's others
 };
+
+/// The common options with --refraction set to the link's own k (the first of the list).
+CommonOptions withRefraction(CommonOptions common, const LinkValues& v) {
+    common.refraction = v.refractions.front();
+    return common;
+}
+
+/// Most values --refraction takes: the link's own and three more for the plot.
+constexpr std::size_t kMaxRefractions = 4;
+
+/// The values of a --refraction list, each checked as the common --refraction is; an empty
+/// list or more than kMaxRefractions values is refused. `why` receives the sentence.
+std::vector<double> refractionList(const std::string& text, std::string* why) {
+    std::vector<double> ks;
+    std::size_t start = 0;
+    for (;;) {
+        const std::size_t comma = text.find(',', start);
+        const std::string piece = trim(
+            text.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
+        const std::string problem = refractionCheck()(piece);
+        if (!problem.empty()) {
+            *why = problem;
+            return {};
+        }
+        ks.push_back(*parseDecimal(piece));
+        if (comma == std::string::npos)
+            break;
+        start = comma + 1;
+    }
+    if (ks.size() > kMaxRefractions) {
+        *why = "'" + echoText(text) + "' has " + std::to_string(ks.size()) +
+               " values; at most 4 (the link's k and three more for the plot)";
+        return {};
+    }
+    return ks;
+}
 
 LinkValues checkLinkOptions(const LinkRunOptions& s) {
     const bool pairs = !s.pairs.empty();
@@ -280,6 +361,15 @@ LinkValues checkLinkOptions(const LinkRunOptions& s) {
     if (pairs && !s.plot.empty())
         throw UsageError("--plot draws the profile of one link: give --from and --to, not --pairs");
     LinkValues v;
+    std::string why;
+    v.refractions = refractionList(s.refraction, &why);
+    if (v.refractions.empty())
+        throw UsageError("--refraction: " + why);
+    if (v.refractions.size() > 1 && pairs) {
+        throw UsageError(
+            "--refraction: a list of values is for the profile plot of one link; with --pairs "
+            "give one k");
+    }
     if (!trim(s.frequency_mhz).empty()) {
         const std::string t = trim(s.frequency_mhz);
         const auto f = parseDecimal(t);
@@ -555,6 +645,30 @@ std::string linkTable(const RunContext& ctx, const LinkFigures& f, double spacin
     return t.render();
 }
 
+/// What the profile under one k of a --refraction list says, for the summary.
+nlohmann::json refractionJson(double k, const PathProfileResult& r, const LinkEnds& e) {
+    const bool fresnel = e.frequency_mhz > 0;
+    return {{"refraction", k},
+            {"effective_radius_m", finiteOrNull(r.effective_radius_m)},
+            {"line_of_sight", r.line_of_sight ? "clear" : "blocked"},
+            {"blocked_at_m", finiteOrNull(r.blocked_at_m)},
+            {"min_clearance_m", finiteOrNull(r.min_clearance_m)},
+            {"min_clearance_at_m", finiteOrNull(r.min_clearance_at_m)},
+            {"min_fresnel_fraction", fresnel ? finiteOrNull(r.min_fresnel_fraction) : nullptr},
+            {"min_fresnel_at_m", fresnel ? finiteOrNull(r.min_fresnel_at_m) : nullptr}};
+}
+
+/// The same for the table: one line.
+std::string refractionText(const PathProfileResult& r, const LinkEnds& e) {
+    std::string text =
+        r.line_of_sight ? "clear" : "blocked, first at " + formatDistance(r.blocked_at_m);
+    if (std::isfinite(r.min_clearance_m))
+        text += "; least clearance " + formatNumber(r.min_clearance_m, 2) + " m";
+    if (e.frequency_mhz > 0 && std::isfinite(r.min_fresnel_fraction))
+        text += "; worst " + formatNumber(r.min_fresnel_fraction, 3) + " of F1";
+    return text;
+}
+
 /// The header of the --pairs CSV (one row per link).
 std::string pairsCsvHeader(bool required) {
     std::string h =
@@ -600,8 +714,8 @@ CellWindow unionWindow(const CellWindow& a, const CellWindow& b) {
 
 /// `lookfar link --pairs`: every row of the pairs CSV measured as `link --from --to` would.
 RunReport runPairs(const RunEnv& env, const LinkRunOptions& s, const LinkValues& v) {
-    RunContext ctx =
-        prepareRun(env, "link", s.common, {{"--csv", s.csv}}, {s.pairs}, DemCells::Later);
+    RunContext ctx = prepareRun(env, "link", withRefraction(s.common, v), {{"--csv", s.csv}},
+                                {s.pairs}, DemCells::Later);
     ctx.run.observer_height_m = kNaN;  // each link has its own
     ctx.run.target_height_m = kNaN;
     ctx.run.method = "exact";
@@ -748,6 +862,16 @@ OptionTable LinkRun::declare() {
     LinkRunOptions& s = options;
     OptionTable t = commonOptions(s.common, kGeometryOptions);
     removeOption(t, "--reach");
+    // link's --refraction takes a list: the link's k, then up to three more for --plot.
+    OptionDecl& k = findOption(t, "--refraction");
+    k.field = &s.refraction;
+    k.help +=
+        "; a list k1,k2,... (at most 4) draws the sightline of each in --plot and adds a line "
+        "for each to the summary (the figures are those of k1)";
+    k.check = [](const std::string& text) {
+        std::string why;
+        return refractionList(text, &why).empty() ? why : std::string();
+    };
     t.push_back(OptionDecl("--from", &s.from,
                            "start of the path X,Y (in --crs; the exact point); one link needs "
                            "--from and --to, several --pairs",
@@ -805,21 +929,41 @@ RunReport LinkRun::run(const RunEnv& env) {
     e.to_h = v.to_h;
     e.frequency_mhz = v.frequency_mhz;
     e.required_fraction = v.required_fraction;
-    RunContext ctx = prepareRun(env, "link", s.common, {{"--csv", s.csv}, {"--plot", s.plot}}, {},
-                                DemCells::Later);
+    RunContext ctx = prepareRun(env, "link", withRefraction(s.common, v),
+                                {{"--csv", s.csv}, {"--plot", s.plot}}, {}, DemCells::Later);
     MapPoint a, b;
     const PlacedPath path = openPath(ctx, v, e, &a, &b);
     // Execute.
     const LinkFigures f = measureLink(ctx, path, a, b, e);
+    std::vector<RefractionVariant> variants;  // the other k of a --refraction list
+    for (std::size_t i = 1; i < v.refractions.size(); ++i) {
+        const EarthModel earth(ctx.earth.shape(), ctx.earth.ellipsoid(), ctx.earth.sphereRadiusM(),
+                               v.refractions[i]);
+        variants.push_back({v.refractions[i], computePathProfile(ctx.dem.z, earth, path.input)});
+    }
     const bool geographic = ctx.dem.geometry.geographic();
     // Write (to temporaries, renamed by finishRun).
     if (!s.csv.empty())
         writeTextFile(ctx, s.csv, profileCsv(f.r, path, geographic));
-    if (!s.plot.empty())
-        writeTextFile(ctx, s.plot, profileSvg(f.r, v.frequency_mhz > 0, v.frequency_mhz));
+    if (!s.plot.empty()) {
+        writeTextFile(
+            ctx, s.plot,
+            profileSvg(f.r, v.frequency_mhz > 0, v.frequency_mhz, v.refractions.front(), variants));
+    }
     // Summary.
-    const nlohmann::json j = linkJson(ctx, f);
-    return finishRun(ctx, j, linkTable(ctx, f, j["sample_spacing_m"].get<double>()));
+    nlohmann::json j = linkJson(ctx, f);
+    std::string table = linkTable(ctx, f, j["sample_spacing_m"].get<double>());
+    if (!variants.empty()) {
+        j["refractions"] = nlohmann::json::array();
+        j["refractions"].push_back(refractionJson(v.refractions.front(), f.r, e));
+        TextTable t("Under other refraction coefficients");
+        for (const RefractionVariant& variant : variants) {
+            j["refractions"].push_back(refractionJson(variant.k, variant.r, e));
+            t.add("k = " + printfNumber("%g", variant.k), refractionText(variant.r, e));
+        }
+        table += "\n" + t.render();
+    }
+    return finishRun(ctx, j, table);
 }
 
 }  // namespace lookfar::run

@@ -484,3 +484,77 @@ TEST(LinkCliTest, LossIsFreeSpaceOverTheSlantDistancePlusDiffraction) {
     EXPECT_TRUE(k["basic_loss_db"].is_null());
     EXPECT_FALSE(k.contains("required_clearance"));
 }
+
+// Issue 14 item 6: --refraction takes a list. The figures are those of the first k; each k's
+// line in the summary is what a run with that k alone gives; the plot labels every sightline.
+TEST(LinkCliTest, RefractionListDrawsEachKAndAgreesWithSingleRuns) {
+    ScratchDir dir;
+    const std::vector<std::string> base = {"link",
+                                           testRaster("demo_coast.tif"),
+                                           "--from",
+                                           "422937.5,5598337.5",
+                                           "--to",
+                                           "431512.5,5592787.5",
+                                           "--from-height",
+                                           "15",
+                                           "--to-height",
+                                           "40",
+                                           "--frequency-mhz",
+                                           "900",
+                                           "--json",
+                                           "--quiet"};
+    std::vector<std::string> args = base;
+    args.insert(args.end(), {"--refraction", "0.25, -0.33,0.5", "--plot", dir.file("p.svg")});
+    CliResult r = runLookfar(args);
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const auto j = nlohmann::json::parse(r.out);
+    EXPECT_EQ(j["parameters"]["refraction"].get<double>(), 0.25);
+    ASSERT_EQ(j["refractions"].size(), 3u);
+    const double ks[] = {0.25, -0.33, 0.5};
+    for (int i = 0; i < 3; ++i) {
+        std::vector<std::string> one = base;
+        one.insert(one.end(), {"--refraction", std::to_string(ks[i])});
+        CliResult single = runLookfar(one);
+        ASSERT_EQ(single.exit_code, 0) << single.err;
+        const auto s = nlohmann::json::parse(single.out);
+        const auto& e = j["refractions"][i];
+        EXPECT_EQ(e["refraction"].get<double>(), ks[i]);
+        for (const char* key :
+             {"effective_radius_m", "line_of_sight", "blocked_at_m", "min_clearance_m",
+              "min_clearance_at_m", "min_fresnel_fraction", "min_fresnel_at_m"})
+            EXPECT_EQ(e[key], s[key]) << "k " << ks[i] << ", " << key;
+        if (i == 0) {
+            nlohmann::json main = figures(j);
+            main.erase("refractions");
+            EXPECT_EQ(main, figures(s));
+        }
+    }
+    // A lower k bends the sightline less: the effective radius is smaller, the clearance less.
+    EXPECT_LT(j["refractions"][1]["min_clearance_m"].get<double>(),
+              j["refractions"][2]["min_clearance_m"].get<double>());
+    const std::string svg = readFile(dir.file("p.svg"));
+    EXPECT_NE(svg.find("sightline, k = 0.25"), std::string::npos);
+    EXPECT_NE(svg.find("sightline and F1, k = -0.33"), std::string::npos);
+    EXPECT_NE(svg.find("sightline and F1, k = 0.5"), std::string::npos);
+
+    // Refused: a bad value (named), five values, a list with --pairs.
+    for (const auto& [k, says] : std::vector<std::pair<std::string, std::string>>{
+             {"0.25,1.2", "--refraction: 1.2 is outside -1 <= k < 1"},
+             {"0.1,0.2,0.3,0.4,0.5", "at most 4"},
+             {"0.25,", "--refraction: '' is not a decimal number"}}) {
+        std::vector<std::string> bad = base;
+        bad.insert(bad.end(), {"--refraction", k, "--plot", dir.file("q.svg")});
+        CliResult e = runLookfar(bad);
+        EXPECT_EQ(e.exit_code, 2) << k;
+        EXPECT_NE(firstLine(e.err).find(says), std::string::npos) << e.err;
+    }
+    ScratchDir in;
+    writeText(in.file("p.csv"),
+              "from_name,from_x,from_y,from_height,to_name,to_x,to_y,to_height\n"
+              "A,426937.5,5594387.5,20,B,429787.5,5598562.5,10\n");
+    CliResult e = runLookfar({"link", testRaster("demo_coast.tif"), "--pairs", in.file("p.csv"),
+                              "--refraction", "0.25,-0.33", "--quiet"});
+    EXPECT_EQ(e.exit_code, 2);
+    EXPECT_NE(firstLine(e.err).find("with --pairs give one k"), std::string::npos) << e.err;
+    EXPECT_FALSE(fileExists(dir.file("q.svg")));
+}
