@@ -362,7 +362,8 @@ LinkValues checkLinkOptions(const LinkRunOptions& s) {
         throw UsageError("--plot draws the profile of one link: give --from and --to, not --pairs");
     LinkValues v;
     std::string why;
-    v.refractions = refractionList(s.refraction, &why);
+    v.refractions = s.refraction.empty() ? std::vector<double>{s.common.refraction}
+                                         : refractionList(s.refraction, &why);
     if (v.refractions.empty())
         throw UsageError("--refraction: " + why);
     if (v.refractions.size() > 1 && pairs) {
@@ -865,9 +866,10 @@ OptionTable LinkRun::declare() {
     // link's --refraction takes a list: the link's k, then up to three more for --plot.
     OptionDecl& k = findOption(t, "--refraction");
     k.field = &s.refraction;
-    k.help +=
-        "; a list k1,k2,... (at most 4) draws the sightline of each in --plot and adds a line "
-        "for each to the summary (the figures are those of k1)";
+    k.help += " (default " + printfNumber("%g", s.common.refraction) +
+              "); a list k1,k2,... (at most 4) draws the sightline of each in --plot and adds a "
+              "line for each to the summary (the figures are those of k1)";
+    k.show_default = false;  // the text's default is empty: the common value then
     k.check = [](const std::string& text) {
         std::string why;
         return refractionList(text, &why).empty() ? why : std::string();

@@ -17,9 +17,9 @@ struct LinkRunOptions {
     std::string frequency_mhz;       ///< empty = no Fresnel zone
     std::string required_clearance;  ///< fraction of F1; empty = no required heights
     std::string csv, plot;           ///< output paths, empty = not written
-    /// --refraction of link: one k, or a list for the plot (the first is the link's); the
-    /// common options' refraction is set from it by the run.
-    std::string refraction = "0.13";
+    /// --refraction of link as typed: one k, or a list for the plot (the first is the link's,
+    /// set into the common options by the run); empty = common.refraction alone.
+    std::string refraction;
 };
 
 class LinkRun final : public RunCommand {
