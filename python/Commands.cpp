@@ -379,8 +379,9 @@ the lowest and highest horizon, the open sectors, the sky-view factor and the se
            const py::object& frequency_mhz, const py::object& refraction,
            const py::object& earth_model, const py::object& earth_radius, const py::object& crs,
            const py::object& threads, const py::object& csv, const py::object& plot,
-           const py::object& pairs, const py::object& required_clearance, bool overwrite,
-           const py::object& progress) {
+           const py::object& pairs, const py::object& required_clearance,
+           const py::object& ground_permittivity, const py::object& ground_conductivity,
+           const py::object& polarization, bool overwrite, const py::object& progress) {
             run::LinkRun command;
             Call call(command, dem);
             const CommonArgs common{py::none(),   py::none(), py::none(), refraction, earth_model,
@@ -400,6 +401,9 @@ the lowest and highest horizon, the open sectors, the sky-view factor and the se
             }
             call.set().set("--frequency-mhz", frequency_mhz);
             call.set().set("--required-clearance", required_clearance);
+            call.set().set("--ground-permittivity", ground_permittivity);
+            call.set().set("--ground-conductivity", ground_conductivity);
+            call.set().set("--polarization", polarization);
             if (pairs.is_none())
                 call.add(Output("profile", "--csv", "profile.csv", Kind::Columns, csv, true));
             else
@@ -414,7 +418,9 @@ the lowest and highest horizon, the open sectors, the sky-view factor and the se
         py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
         py::arg("threads") = py::none(), py::arg("csv") = py::none(), py::arg("plot") = py::none(),
         py::arg("pairs") = py::none(), py::arg("required_clearance") = py::none(),
-        py::arg("overwrite") = false, py::arg("progress") = py::none(),
+        py::arg("ground_permittivity") = 22.0, py::arg("ground_conductivity") = 0.003,
+        py::arg("polarization") = "vertical", py::arg("overwrite") = false,
+        py::arg("progress") = py::none(),
         (std::string(R"(The path profile between two points, or many links at once (lookfar link).
 
     dem: a path or a lookfar.Dem.
@@ -424,6 +430,8 @@ the lowest and highest horizon, the open sectors, the sky-view factor and the se
         transmission loss (median prediction); None (the default) for none.
     required_clearance: a fraction of F1 (0 to 2, e.g. 0.6): the summary gives the antenna
         height each end needs, the other fixed (needs a frequency).
+    ground_permittivity (default 22), ground_conductivity (S/m, default 0.003), polarization
+        ("vertical" or "horizontal"): the ground for the loss (sea: 80 and 5).
     pairs: instead of from_/to and the heights, a path to a CSV of links (from_name, from_x,
         from_y, from_height, to_name, to_x, to_y, to_height, optional frequency_mhz).
     csv: a path to write the profile CSV (with pairs: one row per link) too; plot: a path for

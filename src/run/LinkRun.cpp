@@ -7,6 +7,7 @@
 #include <limits>
 #include <optional>
 #include <string>
+#include <tuple>
 #include <vector>
 
 #include "lookfar/core/Errors.hpp"
@@ -306,6 +307,7 @@ struct LinkValues {
     double required_fraction = kNaN;  ///< --required-clearance, NaN = not asked
     MapPoint from_in, to_in;          ///< one link: as given, in --crs
     std::vector<double> refractions;  ///< --refraction: the link's k, then the plot's others
+    RadioParams ground;               ///< --ground-permittivity, --ground-conductivity, …
 };
 
 /// The common options with --refraction set to the link's own k (the first of the list).
@@ -395,6 +397,19 @@ LinkValues checkLinkOptions(const LinkRunOptions& s) {
         }
         v.required_fraction = *f;
     }
+    // The CLI checks the ranges while parsing; a library caller gets the same sentences here.
+    for (const auto& [flag, value, lo] :
+         {std::tuple<const char*, double, double>{"--ground-permittivity", s.ground_permittivity,
+                                                  1.0},
+          std::tuple<const char*, double, double>{"--ground-conductivity", s.ground_conductivity,
+                                                  0.0}}) {
+        const std::string problem = decimalCheck(lo, 100, "")(printfNumber("%.17g", value));
+        if (!problem.empty())
+            throw UsageError(std::string(flag) + ": " + problem);
+    }
+    v.ground.ground_permittivity = s.ground_permittivity;
+    v.ground.ground_conductivity_s_m = s.ground_conductivity;
+    v.ground.polarization = parsePolarization(s.polarization);
     if (!pairs) {
         v.from_h = parseHeightOption(s.from_height, "--from-height");
         v.to_h = parseHeightOption(s.to_height, "--to-height");
@@ -409,6 +424,7 @@ struct LinkEnds {
     double from_h = 0, to_h = 0;
     double frequency_mhz = kNaN;      ///< NaN: no Fresnel zone, no loss
     double required_fraction = kNaN;  ///< NaN: no required heights
+    RadioParams ground;               ///< the ground's constants and polarization (not frequency)
 };
 
 /// The samples of `path` in the cells of the window read, with what the link asks.
@@ -467,8 +483,8 @@ EndAzimuths endAzimuths(const PlacedPath& path, const MapPoint& a, const MapPoin
 }
 
 /// Basic transmission loss over the profile by the delta-Bullington method (Propagation.hpp),
-/// over land ground, when the frequency lies where the method applies and both antennas stand
-/// above the ground; otherwise nothing, and `why` says so.
+/// over the ground of `e`, when the frequency lies where the method applies and both antennas
+/// stand above the ground; otherwise nothing, and `why` says so.
 std::optional<PathLoss> linkLoss(const PathProfileResult& r, const LinkEnds& e, std::string* why) {
     if (!(e.frequency_mhz >= kMinFrequencyMhz && e.frequency_mhz <= kMaxFrequencyMhz)) {
         *why = fmtg(e.frequency_mhz) +
@@ -487,7 +503,7 @@ std::optional<PathLoss> linkLoss(const PathProfileResult& r, const LinkEnds& e, 
         profile.distance_m.push_back(p.distance_m);
         profile.height_m.push_back(p.terrain_m);
     }
-    RadioParams params;  // land ground, vertical polarization (the defaults of `signal`)
+    RadioParams params = e.ground;
     params.frequency_mhz = e.frequency_mhz;
     return deltaBullingtonLoss(profile, e.from_h, e.to_h, r.effective_radius_m, params);
 }
@@ -572,11 +588,20 @@ nlohmann::json figuresJson(const LinkFigures& f) {
     return j;
 }
 
+/// The ground of the loss, in the summary's parameters.
+void addGroundParameters(nlohmann::json& j, const RadioParams& ground) {
+    j["parameters"]["ground_permittivity"] = ground.ground_permittivity;
+    j["parameters"]["ground_conductivity_s_m"] = ground.ground_conductivity_s_m;
+    j["parameters"]["polarization"] = toString(ground.polarization);
+}
+
 nlohmann::json linkJson(const RunContext& ctx, const LinkFigures& f) {
     nlohmann::json j = summaryBase(ctx.run);
     j["parameters"]["frequency_mhz"] = finiteOrNull(f.ends.frequency_mhz);
     j["parameters"]["from_height_m"] = f.ends.from_h;
     j["parameters"]["to_height_m"] = f.ends.to_h;
+    if (f.ends.frequency_mhz > 0)
+        addGroundParameters(j, f.ends.ground);
     j.update(figuresJson(f));
     return j;
 }
@@ -736,6 +761,7 @@ RunReport runPairs(const RunEnv& env, const LinkRunOptions& s, const LinkValues&
         e.to_h = p.to_height_m;
         e.frequency_mhz = p.frequency_mhz.value_or(v.frequency_mhz);
         e.required_fraction = v.required_fraction;
+        e.ground = v.ground;
         if (required && !(e.frequency_mhz > 0)) {
             throw InputError(where + ": the link from '" + echoText(p.from_name) + "' to '" +
                              echoText(p.to_name) +
@@ -826,6 +852,7 @@ RunReport runPairs(const RunEnv& env, const LinkRunOptions& s, const LinkValues&
     j["parameters"]["frequency_mhz"] = finiteOrNull(v.frequency_mhz);
     if (required)
         j["parameters"]["required_clearance"] = v.required_fraction;
+    addGroundParameters(j, v.ground);
     j["pairs"] = s.pairs;
     j["link_count"] = pairs.size();
     j["clear"] = clear;
@@ -852,7 +879,8 @@ CommandHelp LinkRun::help() const {
             "the exact sphere of radius R/(1-k) along the path. Clearance is the sightline's "
             "height above the terrain; F1 = sqrt(lambda d1 d2 / d). With a frequency from 30 to "
             "50000 MHz the basic transmission loss is ITU-R P.525 free space plus the "
-            "delta-Bullington diffraction of ITU-R P.526-15 4.5 over land ground. --pairs FILE "
+            "delta-Bullington diffraction of ITU-R P.526-15 4.5 (ground: land unless given). "
+            "--pairs FILE "
             "checks many links in one run, each exactly as --from/--to would.\nCaution: the "
             "losses are median predictions for planning, not licensed coverage; the DEM has no "
             "buildings or trees; the local regulator's methods and licensed engineering "
@@ -908,6 +936,7 @@ OptionTable LinkRun::declare() {
                            "report the antenna height each end needs, the other fixed, for that "
                            "clearance along the whole path (needs a frequency)",
                            "Path"));
+    addGroundOptions(t, &s.ground_permittivity, &s.ground_conductivity, &s.polarization);
     t.push_back(OptionDecl("--csv", &s.csv,
                            "write the profile as CSV (distance_m,x,y,terrain_m,earth_bulge_m,"
                            "sightline_m,clearance_m,fresnel_radius_m,fresnel_fraction); with "
@@ -931,6 +960,7 @@ RunReport LinkRun::run(const RunEnv& env) {
     e.to_h = v.to_h;
     e.frequency_mhz = v.frequency_mhz;
     e.required_fraction = v.required_fraction;
+    e.ground = v.ground;
     RunContext ctx = prepareRun(env, "link", withRefraction(s.common, v),
                                 {{"--csv", s.csv}, {"--plot", s.plot}}, {}, DemCells::Later);
     MapPoint a, b;

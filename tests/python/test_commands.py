@@ -40,7 +40,8 @@ def test_link_pairs_equals_cli_and_single_links(lookfar, tmp_path):
     cli = cli_json("link", DEMO, "--pairs", pairs, "--frequency-mhz", 2400, "--refraction", 0.25,
                    "--required-clearance", 0.6, "--csv", tmp_path / "cli.csv")
     r = lookfar.link(DEMO, pairs=pairs, frequency_mhz=2400, refraction=0.25,
-                     required_clearance=0.6, csv=tmp_path / "py.csv")
+                     required_clearance=0.6, csv=tmp_path / "py.csv", ground_permittivity=22,
+                     ground_conductivity=0.003, polarization="vertical")
     assert (tmp_path / "py.csv").read_bytes() == (tmp_path / "cli.csv").read_bytes()
     assert comparable(r.summary) == comparable(cli)
     assert r.links["from_name"] == ["Quarrel Knap", "Tollan Rigg"]

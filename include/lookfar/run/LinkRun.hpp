@@ -16,7 +16,11 @@ struct LinkRunOptions {
     bool from_height_given = false, to_height_given = false;
     std::string frequency_mhz;       ///< empty = no Fresnel zone
     std::string required_clearance;  ///< fraction of F1; empty = no required heights
-    std::string csv, plot;           ///< output paths, empty = not written
+    /// The ground under the path, for the loss (land by default, as for `signal`).
+    double ground_permittivity = 22;
+    double ground_conductivity = 0.003;  ///< S/m
+    std::string polarization = "vertical";
+    std::string csv, plot;  ///< output paths, empty = not written
     /// --refraction of link as typed: one k, or a list for the plot (the first is the link's,
     /// set into the common options by the run); empty = common.refraction alone.
     std::string refraction;
