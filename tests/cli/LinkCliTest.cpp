@@ -616,3 +616,22 @@ TEST(LinkCliTest, LossWithTheGroundConstantsIsSignalsLoss) {
     }
     EXPECT_GT(land_loss - sea_loss, 20.0);
 }
+
+// With --crs the pairs' ends are transformed as --from/--to are: still the same figures.
+TEST(LinkCliTest, PairsGivenInAnotherCrsMatchSingleLinks) {
+    ScratchDir in;
+    writeText(in.file("p.csv"),
+              "from_name,from_x,from_y,from_height,to_name,to_x,to_y,to_height\n"
+              "a,-4.08,50.52,10,b,-3.97,50.49,20\n");
+    CliResult r = runLookfar({"link", testRaster("demo_coast.tif"), "--crs", "EPSG:4326", "--pairs",
+                              in.file("p.csv"), "--json", "--quiet"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    CliResult single = runLookfar({"link", testRaster("demo_coast.tif"), "--crs", "EPSG:4326",
+                                   "--from=-4.08,50.52", "--to=-3.97,50.49", "--from-height", "10",
+                                   "--to-height", "20", "--json", "--quiet"});
+    ASSERT_EQ(single.exit_code, 0) << single.err;
+    nlohmann::json entry = nlohmann::json::parse(r.out)["links"][0];
+    for (const char* key : {"index", "line", "from_name", "to_name", "frequency_mhz"})
+        entry.erase(key);
+    EXPECT_EQ(entry, figures(nlohmann::json::parse(single.out)));
+}
