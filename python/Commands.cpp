@@ -385,40 +385,70 @@ the lowest and highest horizon, the open sectors, the sky-view factor and the se
            const py::object& from_height, const py::object& to_height,
            const py::object& frequency_mhz, const py::object& refraction,
            const py::object& earth_model, const py::object& earth_radius, const py::object& crs,
-           const py::object& threads, const py::object& csv, const py::object& plot, bool overwrite,
-           const py::object& progress) {
+           const py::object& threads, const py::object& csv, const py::object& plot,
+           const py::object& pairs, const py::object& required_clearance,
+           const py::object& ground_permittivity, const py::object& ground_conductivity,
+           const py::object& polarization, bool overwrite, const py::object& progress) {
             run::LinkRun command;
             Call call(command, dem);
             const CommonArgs common{py::none(),   py::none(), py::none(), refraction, earth_model,
                                     earth_radius, crs,        py::none(), threads};
             setCommon(call.set(), call.dem(), common);
-            call.set().set("--from", pointText(from_, "--from"));
-            call.set().set("--to", pointText(to, "--to"));
-            call.set().set("--from-height", from_height);
-            call.set().set("--to-height", to_height);
+            if (!from_.is_none())
+                call.set().set("--from", pointText(from_, "--from"));
+            if (!to.is_none())
+                call.set().set("--to", pointText(to, "--to"));
+            if (pairs.is_none()) {
+                call.set().set("--from-height", from_height);
+                call.set().set("--to-height", to_height);
+            } else {
+                call.set().set(
+                    "--pairs",
+                    py::str(py::module_::import("os").attr("fspath")(pairs)).cast<std::string>());
+            }
             call.set().set("--frequency-mhz", frequency_mhz);
-            call.add(Output("profile", "--csv", "profile.csv", Kind::Columns, csv, true));
+            call.set().set("--required-clearance", required_clearance);
+            call.set().set("--ground-permittivity", ground_permittivity);
+            call.set().set("--ground-conductivity", ground_conductivity);
+            call.set().set("--polarization", polarization);
+            if (pairs.is_none())
+                call.add(Output("profile", "--csv", "profile.csv", Kind::Columns, csv, true));
+            else
+                call.add(Output("links", "--csv", "links.csv", Kind::Columns, csv, true));
             call.add(Output("plot", "--plot", "profile.svg", Kind::File, plot));
             return call.run(overwrite, progress);
         },
-        py::arg("dem"), py::arg("from_"), py::arg("to"), py::arg("from_height") = 1.7,
-        py::arg("to_height") = 1.7, py::arg("frequency_mhz") = py::none(),
+        py::arg("dem"), py::arg("from_") = py::none(), py::arg("to") = py::none(),
+        py::arg("from_height") = 1.7, py::arg("to_height") = 1.7,
+        py::arg("frequency_mhz") = py::none(),
         py::arg("refraction") = EarthModel::kDefaultRefraction,
         py::arg("earth_model") = "ellipsoid", earthRadiusArg(), py::arg("crs") = py::none(),
         py::arg("threads") = py::none(), py::arg("csv") = py::none(), py::arg("plot") = py::none(),
-        py::arg("overwrite") = false, py::arg("progress") = py::none(),
-        (std::string(R"(The path profile between two points (lookfar link).
+        py::arg("pairs") = py::none(), py::arg("required_clearance") = py::none(),
+        py::arg("ground_permittivity") = 22.0, py::arg("ground_conductivity") = 0.003,
+        py::arg("polarization") = "vertical", py::arg("overwrite") = false,
+        py::arg("progress") = py::none(),
+        (std::string(R"(The path profile between two points, or many links at once (lookfar link).
 
     dem: a path or a lookfar.Dem.
     from_, to: (x, y) of the two ends in crs (the exact points, bilinear heights).
     from_height, to_height: antennas above the ground, metres; default 1.7.
-    frequency_mhz: MHz, for the first Fresnel zone; None (the default) for none.
-    csv: a path to write the profile CSV too; plot: a path for the SVG plot.
-    refraction: default 0.13.)") +
+    frequency_mhz: MHz, for the first Fresnel zone and, from 30 to 50000 MHz, the basic
+        transmission loss (median prediction); None (the default) for none.
+    required_clearance: a fraction of F1 (0 to 2, e.g. 0.6): the summary gives the antenna
+        height each end needs, the other fixed (needs a frequency).
+    ground_permittivity (default 22), ground_conductivity (S/m, default 0.003), polarization
+        ("vertical" or "horizontal"): the ground for the loss (sea: 80 and 5).
+    pairs: instead of from_/to and the heights, a path to a CSV of links (from_name, from_x,
+        from_y, from_height, to_name, to_x, to_y, to_height, optional frequency_mhz).
+    csv: a path to write the profile CSV (with pairs: one row per link) too; plot: a path for
+        the SVG plot (one link).
+    refraction: default 0.13; one link may take a list "0.25,-0.33" for the plot.)") +
          kGeometryDoc + R"(
 
 Returns a Result: .profile (dict of columns: distance_m, x, y, terrain_m, earth_bulge_m,
-sightline_m, clearance_m, fresnel_radius_m, fresnel_fraction), .summary, .table.)")
+sightline_m, clearance_m, fresnel_radius_m, fresnel_fraction) or, with pairs, .links (dict of
+the columns of the links CSV, docs/link.md), .summary, .table.)")
             .c_str());
 
     m.def(

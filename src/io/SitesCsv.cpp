@@ -48,6 +48,69 @@ bool blank(const std::string& s) {
     return s.find_first_not_of(" \t") == std::string::npos;
 }
 
+/// The header's columns by lower-case name; a column named twice is refused.
+std::map<std::string, int> headerColumns(const CsvRecord& header, const std::string& path) {
+    std::map<std::string, int> column_of;
+    for (int i = 0; i < static_cast<int>(header.fields.size()); ++i) {
+        const std::string h = lower(header.fields[i]);
+        if (h.empty())
+            continue;
+        auto [it, fresh] = column_of.emplace(h, i);
+        if (!fresh) {
+            throw InputError(at(path, header.line) + ": the column '" + echoText(h) +
+                             "' is named twice (columns " + std::to_string(it->second + 1) +
+                             " and " + std::to_string(i + 1) + ")");
+        }
+    }
+    return column_of;
+}
+
+int columnOf(const std::map<std::string, int>& column_of, const std::string& name) {
+    const auto it = column_of.find(name);
+    return it == column_of.end() ? -1 : it->second;
+}
+
+std::string headerText(const CsvRecord& header) {
+    std::string found;
+    for (std::size_t i = 0; i < header.fields.size(); ++i)
+        found += (i ? "," : "") + header.fields[i];
+    return found;
+}
+
+/// Every row has as many fields as the header; `optional` names a column that may be empty.
+void requireFieldCount(const CsvRecord& row, std::size_t columns, const std::string& where,
+                       const std::string& optional) {
+    if (row.fields.size() == columns)
+        return;
+    throw InputError(where + ": " + std::to_string(row.fields.size()) +
+                     (row.fields.size() == 1 ? " field" : " fields") + " where the header has " +
+                     std::to_string(columns) + "; every row needs all the columns (an empty " +
+                     optional + " is written as a trailing comma)");
+}
+
+double decimalField(const std::string& where, const std::string& what, const std::string& t) {
+    const auto v = parseDecimal(t);
+    if (!v)
+        throw InputError(where + ": " + what + " '" + echoText(t) +
+                         "' is not a finite decimal number");
+    return *v;
+}
+
+/// A height above the ground: a length with an optional unit suffix, from 0 to the maximum.
+double heightField(const std::string& where, const std::string& what, const std::string& t) {
+    std::string why;
+    const auto h = lengthMetres(t, &why);
+    if (!h)
+        throw InputError(where + ": " + what + " '" + echoText(t) + "' " + why);
+    if (!(*h >= 0))
+        throw InputError(where + ": " + what + " '" + echoText(t) + "' is negative");
+    if (*h > kMaxHeightAboveGroundM) {
+        throw InputError(where + ": " + what + " '" + echoText(t) + "' is over " +
+                         kMaxHeightAboveGroundText + " above the ground");
+    }
+    return *h;
+}
+
 }  // namespace
 
 std::vector<CsvRecord> parseCsvRecords(const std::string& input, const std::string& path) {
@@ -144,76 +207,28 @@ std::vector<Site> parseSitesCsv(const std::string& text, const std::string& path
     if (records.empty())
         throw InputError(path + ": the " + role + "s file is empty (no header row)");
     const CsvRecord& header = records.front();
-    int name_col = -1, x_col = -1, y_col = -1, h_col = -1;
-    std::map<std::string, int> column_of;
-    for (int i = 0; i < static_cast<int>(header.fields.size()); ++i) {
-        const std::string h = lower(header.fields[i]);
-        if (h.empty())
-            continue;
-        auto [it, fresh] = column_of.emplace(h, i);
-        if (!fresh) {
-            throw InputError(at(path, header.line) + ": the column '" + echoText(h) +
-                             "' is named twice (columns " + std::to_string(it->second + 1) +
-                             " and " + std::to_string(i + 1) + ")");
-        }
-        if (h == "name")
-            name_col = i;
-        if (h == "x")
-            x_col = i;
-        if (h == "y")
-            y_col = i;
-        if (h == "height")
-            h_col = i;
-    }
+    const std::map<std::string, int> column_of = headerColumns(header, path);
+    const int name_col = columnOf(column_of, "name"), x_col = columnOf(column_of, "x"),
+              y_col = columnOf(column_of, "y"), h_col = columnOf(column_of, "height");
     if (name_col < 0 || x_col < 0 || y_col < 0) {
-        std::string found;
-        for (std::size_t i = 0; i < header.fields.size(); ++i)
-            found += (i ? "," : "") + header.fields[i];
         throw InputError(at(path, header.line) +
                          ": the header must name the columns name,x,y (and optionally "
                          "height); found '" +
-                         echoText(found) + "'");
+                         echoText(headerText(header)) + "'");
     }
     const std::size_t columns = header.fields.size();
     std::vector<Site> sites;
     for (std::size_t r = 1; r < records.size(); ++r) {
         const CsvRecord& row = records[r];
         const std::string where = at(path, row.line);
-        if (row.fields.size() != columns) {
-            throw InputError(where + ": " + std::to_string(row.fields.size()) +
-                             (row.fields.size() == 1 ? " field" : " fields") +
-                             " where the header has " + std::to_string(columns) +
-                             "; every row needs all the columns (an "
-                             "empty height is written as a trailing comma)");
-        }
+        requireFieldCount(row, columns, where, "height");
         Site s;
         s.line = row.line;
         s.name = row.fields[name_col];
-        auto number = [&](int col, const char* what) {
-            const std::string& t = row.fields[col];
-            const auto v = parseDecimal(t);
-            if (!v) {
-                throw InputError(where + ": " + what + " '" + echoText(t) +
-                                 "' is not a finite decimal number");
-            }
-            return *v;
-        };
-        s.x = number(x_col, "x");
-        s.y = number(y_col, "y");
-        if (h_col >= 0 && !row.fields[h_col].empty()) {
-            const std::string& t = row.fields[h_col];
-            std::string why;
-            const auto h = lengthMetres(t, &why);
-            if (!h)
-                throw InputError(where + ": height '" + echoText(t) + "' " + why);
-            if (!(*h >= 0))
-                throw InputError(where + ": height '" + echoText(t) + "' is negative");
-            if (*h > kMaxHeightAboveGroundM) {
-                throw InputError(where + ": height '" + echoText(t) + "' is over " +
-                                 kMaxHeightAboveGroundText + " above the ground");
-            }
-            s.height_m = *h;
-        }
+        s.x = decimalField(where, "x", row.fields[x_col]);
+        s.y = decimalField(where, "y", row.fields[y_col]);
+        if (h_col >= 0 && !row.fields[h_col].empty())
+            s.height_m = heightField(where, "height", row.fields[h_col]);
         if (s.name.empty())
             s.name = role + " " + std::to_string(sites.size() + 1);
         sites.push_back(s);
@@ -223,14 +238,85 @@ std::vector<Site> parseSitesCsv(const std::string& text, const std::string& path
     return sites;
 }
 
-std::vector<Site> readSitesCsv(const std::string& path, const std::string& role) {
+std::vector<LinkPair> parsePairsCsv(const std::string& text, const std::string& path) {
+    const std::vector<CsvRecord> records = parseCsvRecords(text, path);
+    if (records.empty())
+        throw InputError(path + ": the pairs file is empty (no header row)");
+    const CsvRecord& header = records.front();
+    const std::map<std::string, int> column_of = headerColumns(header, path);
+    const char* const names[] = {"from_name", "from_x", "from_y", "from_height",
+                                 "to_name",   "to_x",   "to_y",   "to_height"};
+    int col[8];
+    for (int k = 0; k < 8; ++k) {
+        col[k] = columnOf(column_of, names[k]);
+        if (col[k] < 0) {
+            throw InputError(at(path, header.line) +
+                             ": the header must name the columns from_name,from_x,from_y,"
+                             "from_height,to_name,to_x,to_y,to_height (and optionally "
+                             "frequency_mhz); '" +
+                             names[k] + "' is missing in '" + echoText(headerText(header)) + "'");
+        }
+    }
+    const int f_col = columnOf(column_of, "frequency_mhz");
+    const std::size_t columns = header.fields.size();
+    std::vector<LinkPair> pairs;
+    for (std::size_t r = 1; r < records.size(); ++r) {
+        const CsvRecord& row = records[r];
+        const std::string where = at(path, row.line);
+        requireFieldCount(row, columns, where, "frequency_mhz");
+        for (int k : {1, 2, 3, 5, 6, 7}) {
+            if (row.fields[col[k]].empty()) {
+                throw InputError(where + ": " + names[k] +
+                                 " is empty; every link needs the x, y and height of both ends");
+            }
+        }
+        LinkPair p;
+        p.line = row.line;
+        const std::string number = std::to_string(pairs.size() + 1);
+        p.from_name = row.fields[col[0]].empty() ? "from " + number : row.fields[col[0]];
+        p.from_x = decimalField(where, "from_x", row.fields[col[1]]);
+        p.from_y = decimalField(where, "from_y", row.fields[col[2]]);
+        p.from_height_m = heightField(where, "from_height", row.fields[col[3]]);
+        p.to_name = row.fields[col[4]].empty() ? "to " + number : row.fields[col[4]];
+        p.to_x = decimalField(where, "to_x", row.fields[col[5]]);
+        p.to_y = decimalField(where, "to_y", row.fields[col[6]]);
+        p.to_height_m = heightField(where, "to_height", row.fields[col[7]]);
+        if (f_col >= 0 && !row.fields[f_col].empty()) {
+            const std::string& t = row.fields[f_col];
+            const auto f = parseDecimal(t);
+            if (!f || !(*f > 0)) {
+                throw InputError(where + ": frequency_mhz '" + echoText(t) +
+                                 "' is not a positive decimal frequency in MHz");
+            }
+            p.frequency_mhz = *f;
+        }
+        pairs.push_back(p);
+    }
+    if (pairs.empty())
+        throw InputError(path + ": the pairs file has a header but no pairs");
+    return pairs;
+}
+
+namespace {
+
+std::string readCsvText(const std::string& path, const std::string& what) {
     std::ifstream in(path, std::ios::binary);
     if (!in)
-        throw InputError(path + ": cannot open the " + role + "s file");
+        throw InputError(path + ": cannot open the " + what + " file");
     const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
     if (in.bad())
-        throw InputError(path + ": cannot read the " + role + "s file");
-    return parseSitesCsv(text, path, role);
+        throw InputError(path + ": cannot read the " + what + " file");
+    return text;
+}
+
+}  // namespace
+
+std::vector<Site> readSitesCsv(const std::string& path, const std::string& role) {
+    return parseSitesCsv(readCsvText(path, role + "s"), path, role);
+}
+
+std::vector<LinkPair> readPairsCsv(const std::string& path) {
+    return parsePairsCsv(readCsvText(path, "pairs"), path);
 }
 
 std::string csvField(const std::string& value) {

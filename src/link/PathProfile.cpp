@@ -150,4 +150,54 @@ PathProfileResult computePathProfile(const Grid<float>& dem, const EarthModel& e
     return out;
 }
 
+RequiredHeights requiredEndHeights(const PathProfileResult& r, double fraction) {
+    const auto& pts = r.points;
+    if (pts.size() < 2 || !(fraction >= 0)) {
+        throw InternalError("required heights: need a profile and a fraction >= 0");
+    }
+    const double D = r.path_length_m;
+    const double R = r.effective_radius_m;
+    const bool flat = !std::isfinite(R);
+    const double Theta = flat ? 0.0 : D / R;
+    const double sinTheta = std::sin(Theta);
+    const double zA = r.from_antenna_m, zB = r.to_antenna_m;
+    // The least antenna above the datum at each end; -infinity until a sample asks for more.
+    double needA = -std::numeric_limits<double>::infinity(), needB = needA;
+    for (std::size_t i = 1; i + 1 < pts.size(); ++i) {
+        const ProfilePoint& p = pts[i];
+        if (std::isnan(p.terrain_m))
+            continue;  // no data: never blocks
+        if (std::isnan(p.fresnel_radius_m))
+            throw InternalError("required heights: the profile has no Fresnel zone");
+        const double z = p.terrain_m + fraction * p.fresnel_radius_m;  // the sightline's floor
+        const double d = p.distance_m;
+        if (flat) {
+            // s(d) = zA (D − d)/D + zB d/D ≥ z
+            needA = std::fmax(needA, (z * D - zB * d) / (D - d));
+            needB = std::fmax(needB, (z * D - zA * (D - d)) / d);
+            continue;
+        }
+        // r(θ) = rA rB sin Θ / (rA sin θ + rB sin(Θ − θ)) ≥ rz, rising in rA and in rB:
+        // rA (rB sin Θ − rz sin θ) ≥ rz rB sin(Θ − θ), and the same with the ends swapped.
+        const double theta = d / R;
+        const double rz = R + z, rA = R + zA, rB = R + zB;
+        const double sin1 = std::sin(theta), sin2 = std::sin(Theta - theta);
+        const double denA = rB * sinTheta - rz * sin1;
+        const double denB = rA * sinTheta - rz * sin2;
+        needA = denA > 0 ? std::fmax(needA, rz * rB * sin2 / denA - R)
+                         : std::numeric_limits<double>::infinity();
+        needB = denB > 0 ? std::fmax(needB, rz * rA * sin1 / denB - R)
+                         : std::numeric_limits<double>::infinity();
+    }
+    const auto above = [](double need, double ground) {
+        if (!std::isfinite(need))
+            return need > 0 ? kNaN : 0.0;  // unreachable, or no sample asks for anything
+        return std::fmax(need - ground, 0.0);
+    };
+    RequiredHeights out;
+    out.from_m = above(needA, r.from_ground_m);
+    out.to_m = above(needB, r.to_ground_m);
+    return out;
+}
+
 }  // namespace lookfar

@@ -205,6 +205,23 @@ OptionTable commonOptions(CommonOptions& o, unsigned which) {
     return t;
 }
 
+void addGroundOptions(OptionTable& t, double* permittivity, double* conductivity_s_m,
+                      std::string* polarization) {
+    t.push_back(OptionDecl("--ground-permittivity", permittivity,
+                           "relative permittivity of the ground, 1 to 100 (land 22, sea 80)",
+                           "Radio")
+                    .showDefault()
+                    .checkedBy(decimalCheck(1, 100, "")));
+    t.push_back(OptionDecl("--ground-conductivity", conductivity_s_m,
+                           "conductivity of the ground, S/m, 0 to 100 (land 0.003, sea 5)", "Radio")
+                    .inUnit("S/m")
+                    .showDefault()
+                    .checkedBy(decimalCheck(0, 100, "S/m")));
+    t.push_back(OptionDecl("--polarization", polarization, "vertical or horizontal", "Radio")
+                    .showDefault()
+                    .checkedBy(oneOfCheck({"vertical", "horizontal"})));
+}
+
 double parseHeightOption(const std::string& text, const std::string& flag) {
     const double h = parseLengthMetres(text, flag);
     if (!(h >= 0)) {

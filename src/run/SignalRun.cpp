@@ -561,19 +561,7 @@ OptionTable SignalRun::declare() {
             .inUnit("MHz")
             .checkedBy(decimalCheck(kMinFrequencyMhz, kMaxFrequencyMhz, "MHz"))
             .noteGiven(&s.frequency_given));
-    t.push_back(OptionDecl("--ground-permittivity", &s.ground_permittivity,
-                           "relative permittivity of the ground, 1 to 100 (land 22, sea 80)",
-                           "Radio")
-                    .showDefault()
-                    .checkedBy(decimalCheck(1, 100, "")));
-    t.push_back(OptionDecl("--ground-conductivity", &s.ground_conductivity,
-                           "conductivity of the ground, S/m, 0 to 100 (land 0.003, sea 5)", "Radio")
-                    .inUnit("S/m")
-                    .showDefault()
-                    .checkedBy(decimalCheck(0, 100, "S/m")));
-    t.push_back(OptionDecl("--polarization", &s.polarization, "vertical or horizontal", "Radio")
-                    .showDefault()
-                    .checkedBy(oneOfCheck({"vertical", "horizontal"})));
+    addGroundOptions(t, &s.ground_permittivity, &s.ground_conductivity, &s.polarization);
     t.push_back(OptionDecl("--eirp-dbm", &s.eirp_dbm,
                            "effective isotropic radiated power, dBm (-100 to 200), for --level "
                            "and --served",

@@ -241,3 +241,96 @@ TEST(LinkProfileTest, NoDataDoesNotBlockButAnEndOnNoDataIsBadInput) {
     PathProfileInput bad = eastward(95, 1, 500, cell, 5);
     EXPECT_THROW(computePathProfile(g, sphere(0.13), bad), InputError);
 }
+
+// Issue 14 item 6, --required-clearance, against a hand computation: a single knife edge on flat
+// ground under a flat Earth, where the sightline is the straight line between the antennas.
+// ITU-R P.530 §2.2.2 (docs/references.md row 6): F1 = 17.32 √(d1 d2 / (f d)), d in km, f in GHz.
+// A 30 m wall 500 m along a 2 km path, 2.4 GHz: F1 = 17.32 √(0.5 · 1.5 / (2.4 · 2)) = 6.846 m.
+// For 0.6 F1 over the wall with the far antenna fixed at z_B, the near antenna needs
+//   z_A = (30 + 0.6 F1 − z_B d1/D) · D / d2,  and the far one, z_A fixed, (… − z_A d2/D) · D / d1.
+// 17.32 is √(c · 10⁻⁶) = 17.314 rounded, so the hand values carry 0.04 %: ±0.01 m here.
+TEST(LinkProfileTest, RequiredHeightsOverAKnifeEdgeMatchTheP530Geometry) {
+    const double cell = 10;
+    Grid<float> g(201, 3, 0.0f);
+    for (int r = 0; r < 3; ++r)
+        g(50, r) = 30.0f;
+    const EarthModel flat(EarthShape::Flat);
+    PathProfileInput in = eastward(0, 1, 2000, cell, 5);  // a sample on the wall's centre
+    in.frequency_mhz = 2400;
+    in.from_height_m = 10;
+    in.to_height_m = 10;
+    const PathProfileResult r = computePathProfile(g, flat, in);
+    const RequiredHeights need = requiredEndHeights(r, 0.6);
+    const double f1 = 17.32 * std::sqrt(0.5 * 1.5 / (2.4 * 2.0));
+    EXPECT_NEAR(f1, 6.846, 0.001);
+    EXPECT_NEAR(need.from_m, (30 + 0.6 * f1 - 10 * 0.25) / 0.75, 0.01);
+    EXPECT_NEAR(need.to_m, (30 + 0.6 * f1 - 10 * 0.75) / 0.25, 0.01);
+    // With that antenna the worst clearance is 0.6 of F1, over the wall.
+    in.from_height_m = need.from_m;
+    const PathProfileResult at = computePathProfile(g, flat, in);
+    EXPECT_NEAR(at.min_fresnel_fraction, 0.6, 1e-9);
+    EXPECT_NEAR(at.min_fresnel_at_m, 500, 1e-9);
+    // Fraction 0: the sightline just grazes the top of the wall (z_A = (30 − 2.5)/0.75).
+    EXPECT_NEAR(requiredEndHeights(r, 0.0).from_m, 27.5 / 0.75, 1e-9);
+}
+
+// The solution is exact on the curved Earth too (the chord r(θ) of PathProfile.hpp): with the
+// solved antenna the worst clearance is the fraction asked, and 1 mm lower it is not reached.
+// On open sea an end needs no mast when the other end is high enough: 0 m, not negative.
+TEST(LinkProfileTest, RequiredHeightsAreExactOnTheSphere) {
+    const double cell = 10;
+    Grid<float> g(2100, 3, 0.0f);
+    for (int r = 0; r < 3; ++r) {
+        for (int c = 600; c < 700; ++c)
+            g(c, r) = static_cast<float>(40.0 - 0.8 * std::fabs(c - 650.0));  // a 40 m hill
+    }
+    const EarthModel earth = sphere(0.25);
+    PathProfileInput in = eastward(20, 1, 20000, cell, 5);
+    in.frequency_mhz = 900;
+    in.from_height_m = 15;
+    in.to_height_m = 25;
+    const PathProfileResult r = computePathProfile(g, earth, in);
+    for (double fraction : {0.0, 0.6, 1.0}) {
+        const RequiredHeights need = requiredEndHeights(r, fraction);
+        ASSERT_TRUE(std::isfinite(need.from_m) && std::isfinite(need.to_m));
+        PathProfileInput a = in;
+        a.from_height_m = need.from_m;
+        EXPECT_NEAR(computePathProfile(g, earth, a).min_fresnel_fraction, fraction, 1e-7);
+        a.from_height_m = need.from_m - 0.001;
+        EXPECT_LT(computePathProfile(g, earth, a).min_fresnel_fraction, fraction);
+        PathProfileInput b = in;
+        b.to_height_m = need.to_m;
+        EXPECT_NEAR(computePathProfile(g, earth, b).min_fresnel_fraction, fraction, 1e-7);
+        b.to_height_m = need.to_m - 0.001;
+        EXPECT_LT(computePathProfile(g, earth, b).min_fresnel_fraction, fraction);
+    }
+    // 2 km over the flat sea to a 1 km tower: the sightline from the other end climbs 0.5 m per
+    // metre, more than F1 (at most 7.7 m here) asks, so that end needs no mast: 0 m, not less.
+    // A 300 m tower is not enough: 5 m out, 0.6 F1 = 0.77 m but the sightline rises 0.75 m.
+    Grid<float> sea(300, 3, 0.0f);
+    PathProfileInput s = eastward(10, 1, 2000, cell, 5);
+    s.frequency_mhz = 900;
+    s.from_height_m = 300;
+    s.to_height_m = 300;
+    const RequiredHeights short_of = requiredEndHeights(computePathProfile(sea, earth, s), 0.6);
+    EXPECT_GT(short_of.from_m, 0.0);
+    EXPECT_LT(short_of.from_m, 0.1);
+    s.from_height_m = 1000;
+    s.to_height_m = 1000;
+    const RequiredHeights low = requiredEndHeights(computePathProfile(sea, earth, s), 0.6);
+    EXPECT_EQ(low.from_m, 0.0);
+    EXPECT_EQ(low.to_m, 0.0);
+    // An end that stands at the foot of a cliff facing the other end: the sightline from it
+    // would have to rise more steeply than the vertical at the far end (on an 80 km path, R′ =
+    // 8 500 km: more than R′/D ≈ 106 m per metre), so no height of the far antenna clears it.
+    Grid<float> cliff(8100, 3, 0.0f);
+    for (int r = 0; r < 3; ++r)
+        cliff(8009, r) = 2000.0f;
+    PathProfileInput h = eastward(10, 1, 80000, cell, 5);
+    h.frequency_mhz = 900;
+    h.from_height_m = 10;
+    h.to_height_m = 1;
+    const RequiredHeights none = requiredEndHeights(computePathProfile(cliff, earth, h), 0.6);
+    EXPECT_TRUE(std::isnan(none.from_m));
+    EXPECT_TRUE(std::isfinite(none.to_m));
+}

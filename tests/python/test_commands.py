@@ -31,6 +31,31 @@ def test_link_equals_cli(lookfar, tmp_path):
     assert r.summary["line_of_sight"] in ("clear", "blocked")
 
 
+def test_link_pairs_equals_cli_and_single_links(lookfar, tmp_path):
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("from_name,from_x,from_y,from_height,to_name,to_x,to_y,to_height,"
+                     "frequency_mhz\n"
+                     "Quarrel Knap,%r,%r,20,Tollan Rigg,%r,%r,10,\n"
+                     "Tollan Rigg,%r,%r,10,Quarrel Knap,%r,%r,20,5800\n"
+                     % (QUARREL + TOLLAN + TOLLAN + QUARREL))
+    cli = cli_json("link", DEMO, "--pairs", pairs, "--frequency-mhz", 2400, "--refraction", 0.25,
+                   "--required-clearance", 0.6, "--csv", tmp_path / "cli.csv")
+    r = lookfar.link(DEMO, pairs=pairs, frequency_mhz=2400, refraction=0.25,
+                     required_clearance=0.6, csv=tmp_path / "py.csv", ground_permittivity=22,
+                     ground_conductivity=0.003, polarization="vertical")
+    assert (tmp_path / "py.csv").read_bytes() == (tmp_path / "cli.csv").read_bytes()
+    assert comparable(r.summary) == comparable(cli)
+    assert r.links["from_name"] == ["Quarrel Knap", "Tollan Rigg"]
+    assert r.summary["link_count"] == 2
+    # Each link as a single run gives the same figures (issue 14 item 6).
+    one = lookfar.link(DEMO, from_=TOLLAN, to=QUARREL, from_height=10, to_height=20,
+                       frequency_mhz=5800, refraction=0.25, required_clearance=0.6)
+    entry = r.summary["links"][1]
+    for key in ("path_length_m", "basic_loss_db", "min_fresnel_fraction", "required_clearance",
+                "from", "to"):
+        assert entry[key] == one.summary[key], key
+
+
 def test_intervis_equals_cli(lookfar, tmp_path):
     cli = cli_json("intervis", DEMO, "--stations", SITES, "--reach", 6000, "--all-pairs",
                    "-o", tmp_path / "cli.csv")

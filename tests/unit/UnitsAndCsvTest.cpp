@@ -206,3 +206,78 @@ TEST(SitesCsvTest, WrittenFieldsReadBackAsTheSameName) {
     EXPECT_EQ(csvField("Fell"), "Fell");
     EXPECT_EQ(csvField(" Fell"), "\" Fell\"");
 }
+
+namespace {
+/// The message of the InputError that reading `text` as a pairs CSV throws ("" if none).
+std::string pairsError(const std::string& text) {
+    try {
+        parsePairsCsv(text, "p.csv");
+    } catch (const InputError& e) {
+        return e.what();
+    }
+    return "";
+}
+const char* const kPairsHeader =
+    "from_name,from_x,from_y,from_height,to_name,to_x,to_y,to_height,frequency_mhz\n";
+}  // namespace
+
+// Issue 14 item 6: the pairs CSV of `link --pairs` follows the sites CSV's rules (RFC 4180,
+// UTF-8 with an optional byte-order mark, CRLF or LF, heights with unit suffixes, header names
+// in any case and order); frequency_mhz is optional, and empty takes --frequency-mhz.
+TEST(PairsCsvTest, ReadsEveryColumnWithTheSitesRules) {
+    const std::string text = std::string("\xEF\xBB\xBF") +
+                             "To_Name,to_x,to_y,to_height,FROM_NAME,from_x,from_y,from_height,"
+                             "frequency_mhz\r\n"
+                             "\"Fell, North\",3,4,10ft,A,1,2,30,2400\r\n"
+                             "\r\n"
+                             ",5,6,1km,,7,8,0,\r\n";
+    const auto pairs = parsePairsCsv(text, "p.csv");
+    ASSERT_EQ(pairs.size(), 2u);
+    EXPECT_EQ(pairs[0].from_name, "A");
+    EXPECT_EQ(pairs[0].to_name, "Fell, North");
+    EXPECT_EQ(pairs[0].from_x, 1);
+    EXPECT_EQ(pairs[0].from_y, 2);
+    EXPECT_EQ(pairs[0].to_x, 3);
+    EXPECT_EQ(pairs[0].to_y, 4);
+    EXPECT_EQ(pairs[0].from_height_m, 30);
+    EXPECT_DOUBLE_EQ(pairs[0].to_height_m, 3.048);  // the international foot, exact
+    EXPECT_EQ(*pairs[0].frequency_mhz, 2400);
+    EXPECT_EQ(pairs[0].line, 2);
+    EXPECT_EQ(pairs[1].line, 4);  // the blank line is skipped but counted
+    EXPECT_EQ(pairs[1].from_name, "from 2");
+    EXPECT_EQ(pairs[1].to_name, "to 2");
+    EXPECT_EQ(pairs[1].to_height_m, 1000);
+    EXPECT_FALSE(pairs[1].frequency_mhz.has_value());
+    // Without the frequency column at all.
+    EXPECT_FALSE(parsePairsCsv("from_name,from_x,from_y,from_height,to_name,to_x,to_y,to_height\n"
+                               "A,1,2,3,B,4,5,6\n",
+                               "p.csv")[0]
+                     .frequency_mhz.has_value());
+}
+
+// Bad rows: one sentence naming the file, the line and the field.
+TEST(PairsCsvTest, BadRowNamesTheFileTheLineAndTheField) {
+    const std::string h = kPairsHeader;
+    EXPECT_EQ(pairsError(h + "A,1,2,3,B,4,5,6,900\nA,1,2,3,B,4,5,6\n"),
+              "p.csv, line 3: 8 fields where the header has 9; every row needs all the columns "
+              "(an empty frequency_mhz is written as a trailing comma)");
+    EXPECT_EQ(pairsError(h + "A,1,x2,3,B,4,5,6,900\n"),
+              "p.csv, line 2: from_y 'x2' is not a finite decimal number");
+    EXPECT_EQ(pairsError(h + "A,1,2,3,B,4,5,,900\n"),
+              "p.csv, line 2: to_height is empty; every link needs the x, y and height of both "
+              "ends");
+    EXPECT_EQ(pairsError(h + "A,1,2,tall,B,4,5,6,900\n"),
+              "p.csv, line 2: from_height 'tall' is not a length (write e.g. 30, 30m or 100ft)");
+    EXPECT_EQ(pairsError(h + "A,1,2,-3,B,4,5,6,900\n"),
+              "p.csv, line 2: from_height '-3' is negative");
+    EXPECT_EQ(pairsError(h + "A,1,2,3,B,4,5,6,0\n"),
+              "p.csv, line 2: frequency_mhz '0' is not a positive decimal frequency in MHz");
+    EXPECT_NE(pairsError("from_name,from_x,from_y,from_height,to_name,to_x,to_y\nA,1,2,3,B,4,5\n")
+                  .find("p.csv, line 1: the header must name the columns"),
+              std::string::npos);
+    EXPECT_NE(pairsError("from_name,from_x,from_y,from_height,to_name,to_x,to_y\n")
+                  .find("'to_height' is missing"),
+              std::string::npos);
+    EXPECT_EQ(pairsError(h), "p.csv: the pairs file has a header but no pairs");
+    EXPECT_EQ(pairsError(""), "p.csv: the pairs file is empty (no header row)");
+}

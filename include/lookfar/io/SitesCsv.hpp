@@ -42,6 +42,23 @@ std::vector<Site> parseSitesCsv(const std::string& text, const std::string& path
 /// that are blank (only spaces and tabs, unquoted) are skipped.
 std::vector<CsvRecord> parseCsvRecords(const std::string& text, const std::string& path);
 
+/// One row of a pairs CSV (`lookfar link --pairs`): the two ends of a link.
+struct LinkPair {
+    std::string from_name, to_name;
+    double from_x = 0, from_y = 0, to_x = 0, to_y = 0;  ///< as given (in --crs)
+    double from_height_m = 0, to_height_m = 0;          ///< above the ground, metres
+    std::optional<double> frequency_mhz;                ///< MHz (> 0), if the row gives one
+    int line = 0;  ///< line of the file where the row starts (header = line 1)
+};
+
+/// Reads a pairs CSV: the rules above, with the columns from_name, from_x, from_y, from_height,
+/// to_name, to_x, to_y, to_height (all required; heights take unit suffixes) and an optional
+/// frequency_mhz (a positive decimal, empty = none). Empty names become "from N" / "to N" (N the
+/// pair's number). Throws InputError naming the file, the line and the field.
+std::vector<LinkPair> readPairsCsv(const std::string& path);
+/// The same rules on the text of a file; `path` is only used in messages.
+std::vector<LinkPair> parsePairsCsv(const std::string& text, const std::string& path);
+
 /// Quotes a field for CSV output when it holds a comma, quote or line break, or starts or ends
 /// with white space (which an unquoted field loses when read): parseCsvRecords reads it back
 /// as `value`.

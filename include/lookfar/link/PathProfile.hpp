@@ -97,4 +97,18 @@ double bilinearHeight(const Grid<float>& dem, double col, double row);
 PathProfileResult computePathProfile(const Grid<float>& dem, const EarthModel& earth,
                                      const PathProfileInput& input);
 
+/// The antenna heights above the ground at each end, the other end fixed, that give every
+/// sample between the ends (with terrain) a clearance of at least `fraction` × F1, metres ≥ 0;
+/// NaN where raising that end alone cannot reach it (the far end's side of the Earth's bulge).
+struct RequiredHeights {
+    double from_m = std::numeric_limits<double>::quiet_NaN();
+    double to_m = std::numeric_limits<double>::quiet_NaN();
+};
+
+/// Solves the heights exactly, sample by sample: the sightline at a sample rises monotonically
+/// with either end's antenna, so each sample asks for one least antenna radius, in closed form
+/// on the chord r(θ) above (a straight line on a flat Earth), and the end needs the greatest.
+/// `r` is a profile computed with a frequency (InternalError otherwise); `fraction` ≥ 0.
+RequiredHeights requiredEndHeights(const PathProfileResult& r, double fraction);
+
 }  // namespace lookfar

@@ -115,6 +115,12 @@ struct CommonOptions {
 /// With kOutputOptions, an empty `o.extent` becomes its default "dem".
 OptionTable commonOptions(CommonOptions& o, unsigned which);
 
+/// Appends the ground's electrical constants of the radio commands (signal, link), in the group
+/// "Radio": --ground-permittivity (1 to 100), --ground-conductivity (S/m, 0 to 100) and
+/// --polarization (vertical or horizontal), filling the three fields.
+void addGroundOptions(OptionTable& table, double* permittivity, double* conductivity_s_m,
+                      std::string* polarization);
+
 /// Parses a non-negative, finite height option (exit 2 otherwise); `flag` names it.
 double parseHeightOption(const std::string& text, const std::string& flag);
 /// Parses --reach: empty = unlimited, else a positive length.
