@@ -116,7 +116,7 @@ class GridRasters {
 };
 
 /// What the rasters' metadata records of a run over every cell.
-void describeGrid(RunContext& ctx, const HorizonRunOptions& st, const HorizonOptions& opt) {
+void describeGrid(RunContext& ctx, const HorizonOptions& opt) {
     const int n = opt.directions;
     ctx.run.extra["DIRECTIONS"] = std::to_string(n);
     ctx.run.extra["AZIMUTHS"] = "band i (1-based) is azimuth (i - 1) * 360 / " + std::to_string(n) +
@@ -228,7 +228,7 @@ RunReport runGrid(const RunEnv& env, const HorizonRunOptions& st) {
     opt.reach_m = ctx.reach_m;
     opt.latitude_deg = centreLatitude(ctx);
     opt.method = st.common.method == "reference" ? HorizonMethod::Reference : HorizonMethod::Fast;
-    describeGrid(ctx, st, opt);
+    describeGrid(ctx, opt);
 
     // The DEM in tiles when it does not fit --memory (a reach is then needed), each read with
     // a halo of the reach: the same bits as one run over the whole DEM (docs/horizon.md).

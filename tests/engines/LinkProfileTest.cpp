@@ -324,8 +324,8 @@ TEST(LinkProfileTest, RequiredHeightsAreExactOnTheSphere) {
     // would have to rise more steeply than the vertical at the far end (on an 80 km path, R′ =
     // 8 500 km: more than R′/D ≈ 106 m per metre), so no height of the far antenna clears it.
     Grid<float> cliff(8100, 3, 0.0f);
-    for (int r = 0; r < 3; ++r)
-        cliff(8009, r) = 2000.0f;
+    for (int row = 0; row < 3; ++row)
+        cliff(8009, row) = 2000.0f;
     PathProfileInput h = eastward(10, 1, 80000, cell, 5);
     h.frequency_mhz = 900;
     h.from_height_m = 10;
